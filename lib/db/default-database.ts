@@ -4,7 +4,7 @@
 import path from "node:path";
 import pg from "pg";
 import { AppError } from "@/lib/errors";
-import { ensureLocalServer, type LocalServer } from "@/lib/db/local-server";
+import { ensureLocalServer, findFreePort, isPortFree, type LocalServer } from "@/lib/db/local-server";
 
 export const DEFAULT_DATA_DIR = path.resolve(process.cwd(), process.env.TRIAGE_DATA_DIR ?? ".data/pg");
 export const DEFAULT_DATABASE_NAME = "triage_desk";
@@ -57,7 +57,10 @@ export async function openDefaultDatabase(): Promise<OpenDatabase> {
     await checkReachable(configured);
     return { url: configured, close: async () => undefined };
   }
-  const server = await ensureLocalServer({ dataDir: DEFAULT_DATA_DIR });
+  // A stable port when we can have it, so a saved psql or BI connection keeps working.
+  const preferred = Number(process.env.TRIAGE_PG_PORT ?? 54329);
+  const port = (await isPortFree(preferred)) ? preferred : await findFreePort();
+  const server = await ensureLocalServer({ dataDir: DEFAULT_DATA_DIR, port });
   try {
     await createDatabaseIfMissing(server.urlFor("postgres"), DEFAULT_DATABASE_NAME);
   } catch (error) {

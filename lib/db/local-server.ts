@@ -91,6 +91,14 @@ export async function findFreePort(): Promise<number> {
   });
 }
 
+export function isPortFree(port: number): Promise<boolean> {
+  return new Promise((resolve) => {
+    const server = net.createServer();
+    server.once("error", () => resolve(false));
+    server.listen(port, "127.0.0.1", () => server.close(() => resolve(true)));
+  });
+}
+
 async function readDataFolderVersion(dataDir: string): Promise<number | undefined> {
   const file = path.join(dataDir, "PG_VERSION");
   if (!existsSync(file)) return undefined;
