@@ -15,6 +15,7 @@ export const auditEventSchema = z.discriminatedUnion("action", [
   z.object({ action: z.literal("user.deactivated"), payload: z.object({ endedSessions: z.number().int() }) }),
   z.object({ action: z.literal("user.reactivated"), payload: z.object({}) }),
   z.object({ action: z.literal("user.password_changed"), payload: z.object({}) }),
+  z.object({ action: z.literal("user.refused"), payload: z.object({ permission: z.string(), target: z.string() }) }),
   z.object({ action: z.literal("api_client.created"), payload: z.object({ name: z.string(), scopes: z.array(z.string()) }) }),
   z.object({ action: z.literal("api_client.revoked"), payload: z.object({ name: z.string() }) }),
   z.object({ action: z.literal("api_client.refused"), payload: z.object({ reason: z.string(), path: z.string() }) }),

@@ -12,7 +12,7 @@ const hours = (n: number) => new Date(receivedAt.getTime() + n * 3_600_000);
 const champion = { scoreKind: "probability" as const, negativeSamplingRate: 0.02, priorHitRate: null };
 const detector = { scoreKind: "anomaly" as const, negativeSamplingRate: 1, priorHitRate: 0.12 };
 
-function derive(overrides: Partial<DeriveRiskFieldsInput> & { alert?: Partial<DeriveRiskFieldsInput["alert"]> } = {}) {
+function derive(overrides: Partial<Omit<DeriveRiskFieldsInput, "alert">> & { alert?: Partial<DeriveRiskFieldsInput["alert"]> } = {}) {
   return deriveRiskFields({
     modelVersion: champion,
     calibrationMap: null,
