@@ -1,11 +1,38 @@
 // Walks the whole audit log in id order and recomputes every hash. The first event whose
 // stored prev_hash or hash does not match is reported; otherwise the count and the head hash.
+//
+// The chain alone proves that nobody changed or removed an event *in the middle* without
+// rewriting everything after it. Someone who can write to the table (a superuser with triggers
+// disabled) can still rewrite the tail consistently, or cut it off. What catches that is a head
+// hash copied outside the database earlier: pass it as an anchor and the walk reports whether it
+// is still in the chain. If it is, every event up to it is exactly as it was when it was copied.
 import type { DbOrTx } from "@/lib/db/client";
 import { auditEventHash, GENESIS_HASH } from "@/lib/audit/audit-hash";
 
+export interface BrokenLink {
+  /** The first event that fails, or null when what fails is a missing anchor. */
+  id: string | null;
+  action: string | null;
+  /** The last event that still verified, so a removed stretch shows as a gap between the two. */
+  afterId: string | null;
+  reason: string;
+}
+
+export interface AnchorResult {
+  hash: string;
+  /** The event whose hash it is, or null when the chain no longer contains it. */
+  foundAtId: string | null;
+}
+
 export type AuditChainReport =
-  | { intact: true; verified: number; headHash: string }
-  | { intact: false; verified: number; brokenAt: { id: string; action: string; reason: string } };
+  | { intact: true; verified: number; headId: string | null; headHash: string; anchors: AnchorResult[] }
+  | { intact: false; verified: number; brokenAt: BrokenLink; anchors: AnchorResult[] };
+
+export interface VerifyAuditChainOptions {
+  batchSize?: number;
+  /** Head hashes recorded outside the database earlier (a ticket, an e-mail, a WORM store). */
+  anchors?: string[];
+}
 
 interface Row {
   id: bigint;
@@ -23,21 +50,34 @@ interface Row {
   hash: string;
 }
 
-export async function verifyAuditChain(db: DbOrTx, options: { batchSize?: number } = {}): Promise<AuditChainReport> {
+export async function verifyAuditChain(db: DbOrTx, options: VerifyAuditChainOptions = {}): Promise<AuditChainReport> {
   const batchSize = options.batchSize ?? 5000;
+  const anchors = new Map<string, string | null>((options.anchors ?? []).map((hash) => [hash.trim().toLowerCase(), null]));
+  const anchorResults = () => [...anchors].map(([hash, foundAtId]) => ({ hash, foundAtId }));
   let expectedPrev = GENESIS_HASH;
   let verified = 0;
-  let lastId = BigInt(0);
+  let lastId: bigint | null = null;
   for (;;) {
     // Keyset paging keeps memory flat however long the log is.
-    const rows = await db.$queryRaw<Row[]>`
+    const rows: Row[] = await db.$queryRaw<Row[]>`
       SELECT id, occurred_at, actor_type, actor_id, actor_label, action, subject_type, subject_id,
              payload, request_id, ip_address, prev_hash, hash
-        FROM audit_events WHERE id > ${lastId} ORDER BY id LIMIT ${batchSize}`;
+        FROM audit_events WHERE id > ${lastId ?? BigInt(0)} ORDER BY id LIMIT ${batchSize}`;
     if (rows.length === 0) break;
     for (const row of rows) {
+      const afterId = lastId === null ? null : lastId.toString();
       if (row.prev_hash !== expectedPrev) {
-        return { intact: false, verified, brokenAt: { id: row.id.toString(), action: row.action, reason: "its prev_hash does not match the hash of the event before it (an event was removed, inserted or reordered)" } };
+        return {
+          intact: false,
+          verified,
+          anchors: anchorResults(),
+          brokenAt: {
+            id: row.id.toString(),
+            action: row.action,
+            afterId,
+            reason: `its prev_hash does not match the hash of ${afterId === null ? "the start of the chain" : `event ${afterId}`} (an event was removed, inserted or reordered before it)`,
+          },
+        };
       }
       const recomputed = auditEventHash(row.prev_hash, {
         occurredAt: row.occurred_at,
@@ -52,12 +92,32 @@ export async function verifyAuditChain(db: DbOrTx, options: { batchSize?: number
         ipAddress: row.ip_address,
       });
       if (recomputed !== row.hash) {
-        return { intact: false, verified, brokenAt: { id: row.id.toString(), action: row.action, reason: "its content no longer matches its hash (the event was changed after it was written)" } };
+        return {
+          intact: false,
+          verified,
+          anchors: anchorResults(),
+          brokenAt: { id: row.id.toString(), action: row.action, afterId, reason: "its content no longer matches its hash (the event was changed after it was written)" },
+        };
       }
+      if (anchors.has(row.hash)) anchors.set(row.hash, row.id.toString());
       expectedPrev = row.hash;
       verified += 1;
       lastId = row.id;
     }
   }
-  return { intact: true, verified, headHash: expectedPrev };
+  const missing = [...anchors].find(([, foundAtId]) => foundAtId === null);
+  if (missing) {
+    return {
+      intact: false,
+      verified,
+      anchors: anchorResults(),
+      brokenAt: {
+        id: null,
+        action: null,
+        afterId: lastId === null ? null : lastId.toString(),
+        reason: `the head hash ${missing[0]} kept outside the database is no longer in the chain (events up to that point were rewritten or removed)`,
+      },
+    };
+  }
+  return { intact: true, verified, headId: lastId === null ? null : lastId.toString(), headHash: expectedPrev, anchors: anchorResults() };
 }
