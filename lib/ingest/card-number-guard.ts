@@ -102,7 +102,7 @@ function passesLuhnAt(digits: string, start: number, length: number): boolean {
 
 /**
  * Candidate PANs inside one run:
- * - each unseparated group of 13–19 digits, and every 13–19 digit window of a longer one;
+ * - each unseparated group of 13–19 digits (longer unseparated runs are references, not card numbers);
  * - every span of two or more consecutive groups with 13–19 digits in all, each group of 3–6 digits
  *   except the last, which may have 1–6. This covers the usual printed forms and a card number right
  *   after a short number ("qty 2 4111 1111 1111 1111").
@@ -116,13 +116,9 @@ function findPanInRun(run: DigitRun): string | null {
     if (length >= MIN_PAN_DIGITS && length <= MAX_PAN_DIGITS && passesLuhnAt(digits, groupStart, length)) {
       return digits.slice(groupStart, groupStart + length);
     }
-    if (length > MAX_PAN_DIGITS) {
-      for (let start = groupStart; start + MIN_PAN_DIGITS <= groupStart + length; start++) {
-        for (let n = MIN_PAN_DIGITS; n <= MAX_PAN_DIGITS && start + n <= groupStart + length; n++) {
-          if (passesLuhnAt(digits, start, n)) return digits.slice(start, start + n);
-        }
-      }
-    }
+    // An unseparated run longer than 19 digits is not a card number: chargeback references
+    // (23-digit acquirer reference numbers) are such runs, and nearly every one of them has some
+    // 13–19 digit window that passes Luhn by chance.
     groupStart += length;
   }
 
@@ -156,8 +152,8 @@ function findPanInText(value: string): string | null {
 /**
  * True when the value is, or contains, something that looks like a full card number: 13–19 digits that
  * pass the Luhn check, either unseparated or written in groups of 3–6 digits (the last may be shorter)
- * joined by single spaces or hyphens. Embedded numbers count ("card 4111 1111 1111 1111 used"), and so does any 13–19 digit window
- * of an unseparated run longer than 19 digits.
+ * joined by single spaces or hyphens. Embedded numbers count ("card 4111 1111 1111 1111 used"); an unseparated run of more than
+ * 19 digits does not (it is some other reference, such as a 23-digit acquirer reference number).
  */
 export function looksLikeFullCardNumber(value: string): boolean {
   return findPanInText(value) !== null;

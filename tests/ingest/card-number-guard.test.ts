@@ -149,9 +149,14 @@ describe("looksLikeFullCardNumber", () => {
     expect(looksLikeFullCardNumber("ref 12 4111 1111 1111 1111")).toBe(true);
   });
 
-  it("finds a card number inside a longer run of digits", () => {
-    // 22 digits: the 16-digit window in the middle passes Luhn.
-    expect(looksLikeFullCardNumber("0004111111111111111199")).toBe(true);
+  it("does not read an unseparated run of more than 19 digits as a card number", () => {
+    // 22 digits whose middle 16 pass Luhn: a reference number, not a PAN (ISO/IEC 7812-1 PANs have at
+    // most 19 digits). Chargeback references (23-digit acquirer reference numbers, from memory of the
+    // card schemes' dispute formats) would otherwise be rejected almost always.
+    expect(looksLikeFullCardNumber("0004111111111111111199")).toBe(false);
+    expect(looksLikeFullCardNumber("ARN 24445005301200023456789")).toBe(false);
+    // The same digits separated from their neighbours are caught.
+    expect(looksLikeFullCardNumber("000 4111111111111111 99")).toBe(true);
   });
 
   it("reads full-width digits and no-break spaces as plain ones", () => {
