@@ -56,11 +56,14 @@ export const auditEventSchema = z.discriminatedUnion("action", [
   z.object({ action: z.literal("settings.changed"), payload: z.object({ key: z.string(), before: z.unknown(), after: z.unknown() }) }),
   z.object({ action: z.literal("label_export.generated"), payload: z.object({ exportId: z.string().uuid(), choices: z.record(z.string(), z.unknown()), rowCount: z.number().int(), format: z.string() }) }),
   z.object({ action: z.literal("audit.viewed"), payload: z.object({ filter: z.record(z.string(), z.unknown()) }) }),
-  z.object({ action: z.literal("audit.exported"), payload: z.object({ filter: z.record(z.string(), z.unknown()), rowCount: z.number().int() }) }),
+  // throughEventId: the newest event the export could contain, so the same file can be produced again.
+  z.object({ action: z.literal("audit.exported"), payload: z.object({ filter: z.record(z.string(), z.unknown()), rowCount: z.number().int(), throughEventId: z.string().nullable(), format: z.literal("csv") }) }),
 ]);
 
 export type AuditEventInput = z.infer<typeof auditEventSchema>;
 export type AuditAction = AuditEventInput["action"];
+/** Every action that can be written, in the order of the union above. */
+export const auditActions: readonly AuditAction[] = auditEventSchema.options.map((option) => option.shape.action.value);
 
 export const auditActorSchema = z.object({
   type: z.enum(["user", "api_client", "system"]),
@@ -73,3 +76,86 @@ export interface AuditContext {
   requestId?: string | null;
   ipAddress?: string | null;
 }
+
+// ---- Questions asked of the trail (the Audit trail screen, GET /api/v1/audit/events, the CSV export).
+
+/** The actions by which a person clears an alert: the first outcome and the second review. */
+export const clearingActions = ["outcome.recorded", "second_review.confirmed", "second_review.overturned"] as const;
+
+/** Named questions, each one filter: "who cleared this alert" and "what did this reviewer clear". */
+export const auditPresets = {
+  cleared_alert: "Who cleared this alert",
+  cleared_by: "What this reviewer cleared",
+} as const;
+export type AuditPreset = keyof typeof auditPresets;
+
+const blankToUndefined = (value: unknown) => (typeof value === "string" && value.trim() === "" ? undefined : value);
+const optionalText = (max: number) => z.preprocess(blankToUndefined, z.string().trim().max(max, `at most ${max} characters`).optional());
+// A UTC calendar day (what a date input sends) or an instant with its offset (for API callers).
+const optionalInstant = z.preprocess(
+  blankToUndefined,
+  z
+    .string()
+    .trim()
+    .refine((value) => /^\d{4}-\d{2}-\d{2}$/.test(value) || /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d{1,6})?)?(Z|[+-]\d{2}:\d{2})$/.test(value), {
+      message: "a date as YYYY-MM-DD (a UTC day) or a time as ISO 8601 with Z or an offset",
+      abort: true,
+    })
+    .refine(
+      (value) => {
+        // Date.parse() rolls 2026-02-30 over into March; a calendar day must survive the round trip.
+        const day = value.slice(0, 10);
+        const start = new Date(`${day}T00:00:00Z`);
+        return !Number.isNaN(start.getTime()) && start.toISOString().slice(0, 10) === day && !Number.isNaN(Date.parse(value));
+      },
+      { message: "not a real date" },
+    )
+    .optional(),
+);
+
+export const auditFilterSchema = z
+  .object({
+    /** An e-mail, an API client's name, a system actor's label, or an actor id. */
+    actor: optionalText(320),
+    /** An action (outcome.recorded) or a family of actions (second_review.* or second_review). */
+    action: z.preprocess(
+      blankToUndefined,
+      z
+        .string()
+        .trim()
+        .regex(/^[a-z_]+(\.([a-z_]+|\*)?)?$/, "an action such as outcome.recorded, or a family such as second_review.*")
+        .optional(),
+    ),
+    /** An alert's internal id (uuid) or its external id from the scoring service. */
+    alert: optionalText(200),
+    /** Inclusive. A bare date is the start of that UTC day. */
+    from: optionalInstant,
+    /** Inclusive. A bare date is the whole of that UTC day. */
+    to: optionalInstant,
+    preset: z.preprocess(blankToUndefined, z.enum(Object.keys(auditPresets) as [AuditPreset, ...AuditPreset[]]).optional()),
+  })
+  .superRefine((filter, context) => {
+    if (filter.preset && filter.action) {
+      context.addIssue({ code: "custom", path: ["action"], message: "leave the action empty when a question is chosen: it looks at clearing decisions only" });
+    }
+    if (filter.preset === "cleared_alert" && !filter.alert) {
+      context.addIssue({ code: "custom", path: ["alert"], message: "name the alert (internal or external id) to ask who cleared it" });
+    }
+    if (filter.preset === "cleared_by" && !filter.actor) {
+      context.addIssue({ code: "custom", path: ["actor"], message: "name the reviewer (e-mail or id) to ask what they cleared" });
+    }
+  });
+export type AuditFilter = z.infer<typeof auditFilterSchema>;
+
+export const AUDIT_PAGE_SIZE_DEFAULT = 50;
+export const AUDIT_PAGE_SIZE_MAX = 500;
+
+/** Keyset paging, newest first: `before` shows the events older than that id, `after` the newer ones. */
+export const auditPageSchema = z
+  .object({
+    before: z.preprocess(blankToUndefined, z.string().regex(/^\d{1,19}$/, "an event id").optional()),
+    after: z.preprocess(blankToUndefined, z.string().regex(/^\d{1,19}$/, "an event id").optional()),
+    limit: z.preprocess(blankToUndefined, z.coerce.number().int().min(1).max(AUDIT_PAGE_SIZE_MAX).default(AUDIT_PAGE_SIZE_DEFAULT)),
+  })
+  .refine((page) => !(page.before && page.after), { path: ["after"], message: "use either before or after, not both" });
+export type AuditPage = z.infer<typeof auditPageSchema>;
