@@ -121,3 +121,11 @@ export async function verifyAuditChain(db: DbOrTx, options: VerifyAuditChainOpti
   }
   return { intact: true, verified, headId: lastId === null ? null : lastId.toString(), headHash: expectedPrev, anchors: anchorResults() };
 }
+
+/** The report in one line, as `npm run audit:verify` prints it and a ticket can quote it. */
+export function describeAuditChainReport(report: AuditChainReport): string {
+  if (report.intact) return `verified ${report.verified} events, head hash ${report.headHash}`;
+  const { brokenAt } = report;
+  const where = brokenAt.id === null ? "missing anchor" : `broken link at event ${brokenAt.id} (${brokenAt.action})`;
+  return `${where}: ${brokenAt.reason}; ${report.verified} events before it verified`;
+}
