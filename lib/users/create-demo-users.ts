@@ -1,0 +1,27 @@
+// The invented staff of the demo scenario (demo-data/people.ts), for local evaluation only.
+// Safe to repeat: people whose email already exists are left as they are.
+import type { DbOrTx } from "@/lib/db/client";
+import { systemActor, type Actor } from "@/lib/auth/actor";
+import { demoPeople } from "@/demo-data/people";
+import { createUser } from "@/lib/users/create-user";
+
+export interface CreateDemoUsersOptions {
+  password: string;
+  actor?: Actor;
+}
+
+export async function createDemoUsers(db: DbOrTx, options: CreateDemoUsersOptions): Promise<{ created: string[]; skipped: string[] }> {
+  const actor = options.actor ?? systemActor("demo-loader");
+  const existing = new Set((await db.user.findMany({ where: { email: { in: demoPeople.map((person) => person.email) } }, select: { email: true } })).map((user) => user.email));
+  const created: string[] = [];
+  const skipped: string[] = [];
+  for (const person of demoPeople) {
+    if (existing.has(person.email)) {
+      skipped.push(person.email);
+      continue;
+    }
+    await createUser(db, { actor, email: person.email, displayName: person.displayName, role: person.role, password: options.password });
+    created.push(person.email);
+  }
+  return { created, skipped };
+}
