@@ -1,0 +1,28 @@
+// THE registry of entry points: every app/api/**/route.ts handler and every exported server action
+// has exactly one entry here, and reaches the app only through apiRoute() / formAction() /
+// plainAction(), which look their entry up by key. tests/auth/route-permissions.test.ts walks the
+// app/ folder and fails for a handler or action without an entry, or an entry without one.
+//
+// API keys: "<METHOD> <path>", the path as in the app/ folder, e.g. "GET /api/v1/alerts/[id]".
+// Server-action keys: "<file under the repository root>#<export name>".
+import type { ApiRouteAccess, ServerActionAccess } from "@/lib/http/route-access";
+
+export const apiRouteAccess = {
+  "GET /api/v1/whoami": { scope: "any", permission: "account.manage_own" },
+} as const satisfies Record<string, ApiRouteAccess>;
+
+export type ApiRouteKey = keyof typeof apiRouteAccess;
+
+export const serverActionAccess = {
+  "app/sign-in/actions.ts#signInAction": "public",
+  "app/sign-out/actions.ts#signOutAction": "public",
+  "app/(desk)/account/actions.ts#changeOwnPasswordAction": "account.manage_own",
+  "app/(desk)/admin/users/actions.ts#createUserAction": "users.manage",
+  "app/(desk)/admin/users/actions.ts#changeRoleAction": "users.manage",
+  "app/(desk)/admin/users/actions.ts#deactivateUserAction": "users.manage",
+  "app/(desk)/admin/users/actions.ts#reactivateUserAction": "users.manage",
+  "app/(desk)/admin/api-clients/actions.ts#createApiClientAction": "api_clients.manage",
+  "app/(desk)/admin/api-clients/actions.ts#revokeApiClientAction": "api_clients.manage",
+} as const satisfies Record<string, ServerActionAccess>;
+
+export type ServerActionKey = keyof typeof serverActionAccess;
