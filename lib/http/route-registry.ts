@@ -9,6 +9,14 @@ import type { ApiRouteAccess, ServerActionAccess } from "@/lib/http/route-access
 
 export const apiRouteAccess = {
   "GET /api/v1/whoami": { scope: "any", permission: "account.manage_own" },
+  // Ingest: the scoring service with its token; supervisors and admins through the upload screen.
+  "POST /api/v1/alerts": { scope: "alerts:write", permission: "ingest.upload" },
+  "POST /api/v1/labels": { scope: "labels:write", permission: "ingest.upload" },
+  "POST /api/v1/outcomes": { scope: "outcomes:write", permission: "ingest.upload" },
+  "GET /api/v1/ingest-batches": { permission: "ingest.view" },
+  "GET /api/v1/ingest-batches/[id]/rejected": { permission: "ingest.view" },
+  "GET /api/v1/model-versions": { scope: "any", permission: "model_health.view" },
+  "POST /api/v1/model-versions": { permission: "model_versions.manage" },
 } as const satisfies Record<string, ApiRouteAccess>;
 
 export type ApiRouteKey = keyof typeof apiRouteAccess;
