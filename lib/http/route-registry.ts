@@ -9,6 +9,9 @@ import type { ApiRouteAccess, ServerActionAccess } from "@/lib/http/route-access
 
 export const apiRouteAccess = {
   "GET /api/v1/whoami": { scope: "any", permission: "account.manage_own" },
+  // The audit trail: API tokens with metrics:read (a monitoring job checking the chain), or auditors, supervisors and admins.
+  "GET /api/v1/audit/verify": { scope: "metrics:read", permission: "audit.view" },
+  "GET /api/v1/audit/events": { scope: "metrics:read", permission: "audit.view" },
   // Ingest: the scoring service with its token; supervisors and admins through the upload screen.
   "POST /api/v1/alerts": { scope: "alerts:write", permission: "ingest.upload" },
   "POST /api/v1/labels": { scope: "labels:write", permission: "ingest.upload" },
