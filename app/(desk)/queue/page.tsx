@@ -2,11 +2,15 @@ import type { Metadata } from "next";
 import { db } from "@/lib/db/client";
 import { listWaitingAlerts } from "@/lib/queue/list-waiting-alerts";
 import { formatDuration, formatMoney, formatProbability } from "@/app/components/format";
+import { requirePagePermission } from "@/lib/auth/current-user";
+import { NotAllowed } from "@/app/components/not-allowed";
 
 export const metadata: Metadata = { title: "Queue" };
 export const dynamic = "force-dynamic";
 
 export default async function QueuePage() {
+  const access = await requirePagePermission("queue.view");
+  if (!access.allowed) return <NotAllowed role={access.user.role} />;
   const now = new Date();
   const alerts = await listWaitingAlerts(db(), { now, limit: 50 });
   return (
