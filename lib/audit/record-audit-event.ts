@@ -20,37 +20,88 @@ export interface RecordAuditEventOptions {
 }
 
 export async function recordAuditEvent(tx: Prisma.TransactionClient, options: RecordAuditEventOptions): Promise<{ id: bigint; hash: string }> {
-  const parsed = auditEventSchema.safeParse(options.event);
-  if (!parsed.success) {
-    throw new AppError("invalid_input", `audit event ${options.event.action}: ${parsed.error.issues.map((issue) => `${issue.path.join(".")}: ${issue.message}`).join("; ")}`);
-  }
+  const [recorded] = await recordAuditEvents(tx, [options]);
+  return recorded;
+}
+
+/**
+ * Appends several events in order with one lock, one read of the chain head and one INSERT —
+ * for batch work (ingest back-fills) where one event per row would cost a round trip each.
+ */
+export async function recordAuditEvents(tx: Prisma.TransactionClient, events: readonly RecordAuditEventOptions[]): Promise<{ id: bigint; hash: string }[]> {
+  if (events.length === 0) return [];
+  const parsedEvents = events.map((options) => {
+    const parsed = auditEventSchema.safeParse(options.event);
+    if (!parsed.success) {
+      throw new AppError("invalid_input", `audit event ${options.event.action}: ${parsed.error.issues.map((issue) => `${issue.path.join(".")}: ${issue.message}`).join("; ")}`);
+    }
+    return parsed.data;
+  });
   await tx.$executeRaw`SELECT pg_advisory_xact_lock(${AUDIT_CHAIN_LOCK_KEY}::bigint)`;
-  const [head] = await tx.$queryRaw<{ hash: string; now: Date }[]>`
+  const [head] = await tx.$queryRaw<{ hash: string | null; now: Date }[]>`
     SELECT (SELECT hash FROM audit_events ORDER BY id DESC LIMIT 1) AS hash, clock_timestamp() AS now`;
-  const prevHash = head?.hash ?? GENESIS_HASH;
-  // Millisecond precision: the value must survive the round trip through JavaScript's Date unchanged.
-  const occurredAt = new Date((options.occurredAt ?? head.now).getTime());
-  const fields = {
-    occurredAt,
-    actorType: options.actor.type,
-    actorId: options.actor.id,
-    actorLabel: options.actor.label,
-    action: parsed.data.action,
-    subjectType: options.subject?.type ?? null,
-    subjectId: options.subject?.id ?? null,
-    payload: parsed.data.payload,
-    requestId: options.context?.requestId ?? null,
-    ipAddress: options.context?.ipAddress ?? null,
+  let prevHash = head?.hash ?? GENESIS_HASH;
+  const columns = {
+    occurredAt: [] as Date[],
+    actorType: [] as string[],
+    actorId: [] as (string | null)[],
+    actorLabel: [] as string[],
+    action: [] as string[],
+    subjectType: [] as (string | null)[],
+    subjectId: [] as (string | null)[],
+    payload: [] as string[],
+    requestId: [] as (string | null)[],
+    ipAddress: [] as (string | null)[],
+    prevHash: [] as string[],
+    hash: [] as string[],
   };
-  const hash = auditEventHash(prevHash, fields);
-  const [row] = await tx.$queryRaw<{ id: bigint }[]>`
+  events.forEach((options, index) => {
+    const event = parsedEvents[index];
+    // Millisecond precision: the value must survive the round trip through JavaScript's Date unchanged.
+    const occurredAt = new Date((options.occurredAt ?? head.now).getTime());
+    const fields = {
+      occurredAt,
+      actorType: options.actor.type,
+      actorId: options.actor.id,
+      actorLabel: options.actor.label,
+      action: event.action,
+      subjectType: options.subject?.type ?? null,
+      subjectId: options.subject?.id ?? null,
+      payload: event.payload,
+      requestId: options.context?.requestId ?? null,
+      ipAddress: options.context?.ipAddress ?? null,
+    };
+    const hash = auditEventHash(prevHash, fields);
+    columns.occurredAt.push(occurredAt);
+    columns.actorType.push(fields.actorType);
+    columns.actorId.push(fields.actorId);
+    columns.actorLabel.push(fields.actorLabel);
+    columns.action.push(fields.action);
+    columns.subjectType.push(fields.subjectType);
+    columns.subjectId.push(fields.subjectId);
+    columns.payload.push(JSON.stringify(fields.payload));
+    columns.requestId.push(fields.requestId);
+    columns.ipAddress.push(fields.ipAddress);
+    columns.prevHash.push(prevHash);
+    columns.hash.push(hash);
+    prevHash = hash;
+  });
+  // unnest(...) WITH ORDINALITY keeps the given order, so identity ids follow the chain order.
+  const rows = await tx.$queryRaw<{ id: bigint; hash: string }[]>`
     INSERT INTO audit_events (occurred_at, actor_type, actor_id, actor_label, action, subject_type, subject_id,
                               payload, request_id, ip_address, prev_hash, hash)
-    VALUES (${occurredAt}, ${fields.actorType}, ${fields.actorId}, ${fields.actorLabel}, ${fields.action},
-            ${fields.subjectType}, ${fields.subjectId}, ${JSON.stringify(fields.payload)}::jsonb,
-            ${fields.requestId}, ${fields.ipAddress}, ${prevHash}, ${hash})
-    RETURNING id`;
-  return { id: row.id, hash };
+    SELECT occurred_at, actor_type, actor_id, actor_label, action, subject_type, subject_id,
+           payload::jsonb, request_id, ip_address, prev_hash, hash
+      FROM unnest(${columns.occurredAt}::timestamptz[], ${columns.actorType}::text[], ${columns.actorId}::text[],
+                  ${columns.actorLabel}::text[], ${columns.action}::text[], ${columns.subjectType}::text[],
+                  ${columns.subjectId}::text[], ${columns.payload}::text[], ${columns.requestId}::text[],
+                  ${columns.ipAddress}::text[], ${columns.prevHash}::text[], ${columns.hash}::text[])
+           WITH ORDINALITY AS e(occurred_at, actor_type, actor_id, actor_label, action, subject_type, subject_id,
+                                payload, request_id, ip_address, prev_hash, hash, position)
+     ORDER BY position
+    RETURNING id, hash`;
+  const idByHash = new Map(rows.map((row) => [row.hash, row.id]));
+  return columns.hash.map((hash) => ({ id: idByHash.get(hash) as bigint, hash }));
 }
 
 /** For callers that are not already in a transaction: the event alone, in its own transaction. */
