@@ -38,7 +38,7 @@ const envSchema = z
       .refine((value) => [16, 24, 32].includes(Buffer.from(value, "base64").length) && /^[A-Za-z0-9+/]+=*$/.test(value), "expected a base64 key of 16, 24 or 32 bytes")
       .optional(),
   })
-  .refine((env) => env.TRIAGE_SESSION_IDLE_MINUTES <= env.TRIAGE_SESSION_LIFETIME_HOURS * 60, {
+  .refine((env) => !(typeof env.TRIAGE_SESSION_IDLE_MINUTES === "number" && typeof env.TRIAGE_SESSION_LIFETIME_HOURS === "number") || env.TRIAGE_SESSION_IDLE_MINUTES <= env.TRIAGE_SESSION_LIFETIME_HOURS * 60, {
     path: ["TRIAGE_SESSION_IDLE_MINUTES"],
     message: "must not be longer than TRIAGE_SESSION_LIFETIME_HOURS",
   });
