@@ -2,6 +2,7 @@
 // DESIGN.md §4 (lib/risk). Pure: no database, no clock. Ingest calls it on arrival; a calibration
 // refit calls it again for the model version's waiting alerts, so both give the same numbers.
 import type { Settings } from "@/lib/settings/schemas";
+import { expectedHandlingMinutesFor } from "@/lib/settings/expected-handling-minutes";
 import {
   computeExpectedLoss,
   computeExposure,
@@ -84,7 +85,7 @@ export function deriveRiskFields({ alert, modelVersion, calibrationMap, settings
     dueAt: dueTime({ arrivedAt: alert.receivedAt, expectedLossMinor, bands: settings.queue.slaBands }),
     priority: priorityValue({
       expectedLossMinor: expectedLoss,
-      expectedHandlingMinutes: settings.queue.expectedHandlingMinutes,
+      expectedHandlingMinutes: expectedHandlingMinutesFor(settings.queue, alert.channel),
       orderMode: settings.queue.orderMode,
     }),
   };

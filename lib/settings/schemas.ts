@@ -11,8 +11,14 @@ export const queueSettingsSchema = z.object({
   slaBands: z
     .array(z.object({ minExpectedLossMinor: z.number().int().min(0), slaHours: z.number().positive().max(24 * 30) }))
     .min(1)
-    .refine((bands) => bands.some((band) => band.minExpectedLossMinor === 0), { message: "one band must start at 0" }),
+    .refine((bands) => bands.some((band) => band.minExpectedLossMinor === 0), { message: "one band must start at 0" })
+    .refine((bands) => new Set(bands.map((band) => band.minExpectedLossMinor)).size === bands.length, {
+      message: "two bands start at the same expected loss; which one would apply?",
+    }),
   expectedHandlingMinutes: z.number().positive().max(600),
+  /** Expected analyst minutes for a channel whose alerts take longer or shorter than the usual; the
+   * others take `expectedHandlingMinutes`. Smith's rule changes the order only where these differ. */
+  handlingMinutesByChannel: z.record(z.string().regex(/^[a-z][a-z0-9_]{0,39}$/), z.number().positive().max(600)).default({}),
   claimLeaseMinutes: z.number().int().min(1).max(24 * 60),
   maxHeldPerAnalyst: z.number().int().min(1).max(50),
   /** A `legitimate` outcome at or above this exposure needs a second person (four-eyes rule). */
@@ -71,6 +77,7 @@ export const defaultSettings: Settings = {
       { minExpectedLossMinor: 50_000, slaHours: 4 },
     ],
     expectedHandlingMinutes: 6,
+    handlingMinutesByChannel: {},
     claimLeaseMinutes: 30,
     maxHeldPerAnalyst: 3,
     fourEyesExposureMinor: 200_000,

@@ -1,5 +1,6 @@
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
 import { AppError } from "@/lib/errors";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditActor, AuditContext } from "@/lib/audit/schemas";
@@ -38,5 +39,5 @@ export async function updateSettings<K extends SettingsKey>(db: DbOrTx, options:
     });
     return parsed.data as Settings[K];
   };
-  return "$transaction" in db ? db.$transaction(run) : run(db);
+  return inTransaction(db, run);
 }

@@ -1,0 +1,247 @@
+// Claiming: two analysts never get the same alert, leases run out, releases and hold limits work,
+// and only the holder may close an alert.
+import { beforeAll, beforeEach, describe, expect, it } from "vitest";
+import { useTestDatabase } from "@/tests/support/test-database";
+import { createAlert, createModelVersion, createUser, createWaitingAlerts, type TestModelVersion } from "@/tests/support/factories";
+import type { UserActor } from "@/lib/auth/actor";
+import { AppError } from "@/lib/errors";
+import { claimNextAlert } from "@/lib/queue/claim-next-alert";
+import { claimAlert } from "@/lib/queue/claim-alert";
+import { releaseAlert } from "@/lib/queue/release-alert";
+import { expireLeases } from "@/lib/queue/expire-leases";
+import { getHeldAlerts } from "@/lib/queue/get-held-alerts";
+import { assertHeldBy } from "@/lib/queue/assert-held-by";
+import { updateSettings } from "@/lib/settings/update-settings";
+import { defaultSettings } from "@/lib/settings/schemas";
+import { verifyAuditChain } from "@/lib/audit/verify-audit-chain";
+
+const database = await useTestDatabase();
+const prisma = database.prisma;
+const NOW = new Date("2026-12-02T12:00:00Z");
+const minutesLater = (minutes: number) => new Date(NOW.getTime() + minutes * 60_000);
+const SYSTEM = { type: "system" as const, id: null, label: "test" };
+
+let model: TestModelVersion;
+let ada: UserActor;
+let ben: UserActor;
+let supervisor: UserActor;
+
+beforeAll(async () => {
+  model = await createModelVersion(prisma);
+  ada = await createUser(prisma, { role: "analyst", displayName: "Ada Quill" });
+  ben = await createUser(prisma, { role: "analyst", displayName: "Ben Marlow" });
+  supervisor = await createUser(prisma, { role: "supervisor" });
+});
+
+beforeEach(async () => {
+  await prisma.$executeRaw`DELETE FROM alerts`;
+  await prisma.$executeRaw`DELETE FROM settings`;
+});
+
+async function setQueue(change: Partial<typeof defaultSettings.queue>): Promise<void> {
+  await updateSettings(prisma, { actor: SYSTEM, key: "queue", value: { ...defaultSettings.queue, ...change } });
+}
+
+/** Three waiting alerts with distinct priorities: high (3,000), middle (2,000), low (1,000). */
+async function threeAlerts(): Promise<{ high: string; middle: string; low: string }> {
+  const make = (externalId: string, priority: number) =>
+    createAlert(prisma, model.id, { externalId, priority, expectedLossMinor: priority, dueAt: minutesLater(24 * 60), probability: 0.5 });
+  return { high: (await make("high", 3_000)).id, middle: (await make("middle", 2_000)).id, low: (await make("low", 1_000)).id };
+}
+
+async function stateOf(alertId: string) {
+  return prisma.alert.findUniqueOrThrow({ where: { id: alertId }, select: { state: true, assignedToId: true, claimedAt: true, leaseExpiresAt: true } });
+}
+
+describe("sixteen analysts taking the next alert at once", () => {
+  let analysts: UserActor[];
+  beforeAll(async () => {
+    analysts = [];
+    for (let i = 0; i < 16; i++) analysts.push(await createUser(prisma, { role: "analyst" }));
+  });
+
+  it.each([1, 2, 3, 4, 5])(
+    "round %i: each of 2,000 waiting alerts is claimed exactly once and none is lost",
+    async (round) => {
+      const ids = await createWaitingAlerts(prisma, { modelVersionId: model.id, count: 2_000, receivedFrom: new Date("2026-12-01T00:00:00Z"), prefix: `round-${round}` });
+
+      // Each claimer is its own promise with its own pooled connection: take next, close it (the
+      // outcome form's part, done here in SQL), repeat until the queue is empty.
+      const claimedBy = await Promise.all(
+        analysts.map(async (analyst) => {
+          const mine: string[] = [];
+          for (;;) {
+            const alert = await claimNextAlert(prisma, { actor: analyst, now: NOW });
+            if (!alert) return mine;
+            expect(alert.assignedToId).toBe(analyst.id);
+            mine.push(alert.id);
+            const closed = await prisma.$executeRaw`
+              UPDATE alerts SET state = 'closed', closed_at = ${NOW}, final_outcome = 'inconclusive', lease_expires_at = NULL
+               WHERE id = ${alert.id}::uuid AND state = 'in_review' AND assigned_to_id = ${analyst.id}::uuid`;
+            expect(closed).toBe(1);
+          }
+        }),
+      );
+
+      const claimed = claimedBy.flat();
+      expect(claimed).toHaveLength(2_000);
+      expect(new Set(claimed).size).toBe(2_000);
+      expect([...claimed].sort()).toEqual([...ids].sort());
+      // The work was shared, not taken by one fast claimer.
+      expect(claimedBy.filter((mine) => mine.length > 0).length).toBeGreaterThan(1);
+      const [{ waiting }] = await prisma.$queryRaw<{ waiting: number }[]>`SELECT count(*)::int AS waiting FROM alerts WHERE state <> 'closed'`;
+      expect(waiting).toBe(0);
+      const audited = await prisma.auditEvent.count({ where: { action: "alert.claimed", subjectId: { in: ids } } });
+      expect(audited).toBe(2_000);
+      if (round === 5) expect((await verifyAuditChain(prisma)).intact).toBe(true);
+    },
+    600_000,
+  );
+});
+
+describe("claiming one alert", () => {
+  it("take next gives the analyst the top alert with a lease of claimLeaseMinutes", async () => {
+    await setQueue({ claimLeaseMinutes: 20 });
+    const { high } = await threeAlerts();
+    const claimed = await claimNextAlert(prisma, { actor: ada, now: NOW });
+    expect(claimed).toMatchObject({ id: high, state: "in_review", assignedToId: ada.id, claimedAt: NOW, leaseExpiresAt: minutesLater(20) });
+    const event = await prisma.auditEvent.findFirstOrThrow({ where: { action: "alert.claimed", subjectId: high } });
+    expect(event.actorId).toBe(ada.id);
+    expect(event.payload).toMatchObject({ how: "take_next", leaseExpiresAt: minutesLater(20).toISOString() });
+  });
+
+  it("returns null when nothing is waiting", async () => {
+    expect(await claimNextAlert(prisma, { actor: ada, now: NOW })).toBeNull();
+  });
+
+  it("an analyst can open and claim a particular waiting alert; a second click changes nothing", async () => {
+    const { low } = await threeAlerts();
+    const first = await claimAlert(prisma, { actor: ada, alertId: low, now: NOW });
+    expect(first).toMatchObject({ id: low, state: "in_review", assignedToId: ada.id });
+    const again = await claimAlert(prisma, { actor: ada, alertId: low, now: minutesLater(1) });
+    expect(again).toEqual(first);
+    expect(await prisma.auditEvent.count({ where: { action: "alert.claimed", subjectId: low } })).toBe(1);
+    await expect(claimAlert(prisma, { actor: ben, alertId: low, now: NOW })).rejects.toThrow(/Another analyst holds this alert/);
+  });
+
+  it("refuses to claim a closed alert or one that does not exist", async () => {
+    const closed = await createAlert(prisma, model.id, { state: "closed", finalOutcome: "legitimate" });
+    await expect(claimAlert(prisma, { actor: ada, alertId: closed.id, now: NOW })).rejects.toThrow(/already closed/);
+    await expect(claimAlert(prisma, { actor: ada, alertId: "00000000-0000-4000-8000-000000000000", now: NOW })).rejects.toMatchObject({ code: "not_found" });
+    await expect(claimAlert(prisma, { actor: ada, alertId: "not-a-uuid", now: NOW })).rejects.toMatchObject({ code: "not_found" });
+  });
+
+  it("people who may not work alerts cannot claim", async () => {
+    await threeAlerts();
+    const auditor = await createUser(prisma, { role: "auditor" });
+    await expect(claimNextAlert(prisma, { actor: auditor, now: NOW })).rejects.toMatchObject({ code: "forbidden" });
+    await expect(claimNextAlert(prisma, { actor: { type: "system", id: null, name: "job" }, now: NOW })).rejects.toMatchObject({ code: "forbidden" });
+  });
+});
+
+describe("hold limit", () => {
+  it("refuses a claim beyond maxHeldPerAnalyst with a clear message, and allows it after a release", async () => {
+    await setQueue({ maxHeldPerAnalyst: 2 });
+    const { high, middle, low } = await threeAlerts();
+    expect((await claimNextAlert(prisma, { actor: ada, now: NOW }))!.id).toBe(high);
+    expect((await claimNextAlert(prisma, { actor: ada, now: NOW }))!.id).toBe(middle);
+
+    const refused = await claimNextAlert(prisma, { actor: ada, now: NOW }).catch((error: unknown) => error);
+    expect(refused).toBeInstanceOf(AppError);
+    expect(refused).toMatchObject({ code: "conflict" });
+    expect((refused as AppError).message).toMatch(/already hold 2 alerts, the most an analyst may hold at once \(2\)/);
+    await expect(claimAlert(prisma, { actor: ada, alertId: low, now: NOW })).rejects.toMatchObject({ code: "conflict" });
+    expect((await stateOf(low)).state).toBe("waiting");
+
+    // Another analyst is not held back by Ada's limit.
+    expect((await claimNextAlert(prisma, { actor: ben, now: NOW }))!.id).toBe(low);
+    await releaseAlert(prisma, { actor: ada, alertId: middle, now: NOW });
+    expect((await claimNextAlert(prisma, { actor: ada, now: NOW }))!.id).toBe(middle);
+  });
+
+  it("a lowered limit applies to the very next claim", async () => {
+    await threeAlerts();
+    await claimNextAlert(prisma, { actor: ada, now: NOW });
+    await setQueue({ maxHeldPerAnalyst: 1 });
+    await expect(claimNextAlert(prisma, { actor: ada, now: NOW })).rejects.toMatchObject({ code: "conflict" });
+  });
+});
+
+describe("leases", () => {
+  it("an expired lease returns the alert to the queue, audited, and someone else can take it", async () => {
+    await setQueue({ claimLeaseMinutes: 30 });
+    const { high } = await threeAlerts();
+    await claimNextAlert(prisma, { actor: ada, now: NOW });
+
+    expect(await expireLeases(prisma, { now: minutesLater(29) })).toEqual([]);
+    expect((await stateOf(high)).state).toBe("in_review");
+
+    const expired = await expireLeases(prisma, { now: minutesLater(30) });
+    expect(expired).toEqual([{ alertId: high, externalId: "high", heldBy: ada.id, leaseExpiredAt: minutesLater(30) }]);
+    expect(await stateOf(high)).toEqual({ state: "waiting", assignedToId: null, claimedAt: null, leaseExpiresAt: null });
+    const event = await prisma.auditEvent.findFirstOrThrow({ where: { action: "alert.lease_expired", subjectId: high } });
+    expect(event).toMatchObject({ actorType: "system", actorLabel: "lease-expiry", payload: { alertId: high, externalId: "high", heldBy: ada.id } });
+    expect(await expireLeases(prisma, { now: minutesLater(31) })).toEqual([]);
+
+    // Claiming sweeps expired leases first: Ben gets the alert Ada let lapse.
+    await claimNextAlert(prisma, { actor: ada, now: minutesLater(31) }); // Ada takes it again…
+    const taken = await claimNextAlert(prisma, { actor: ben, now: minutesLater(62) }); // …and lets it lapse again.
+    expect(taken!.id).toBe(high);
+    expect(taken!.assignedToId).toBe(ben.id);
+  });
+
+  it("lists an analyst's own alerts in review with their leases", async () => {
+    const { high, middle } = await threeAlerts();
+    await claimNextAlert(prisma, { actor: ada, now: NOW });
+    await claimNextAlert(prisma, { actor: ada, now: minutesLater(5) });
+    await claimNextAlert(prisma, { actor: ben, now: NOW });
+    const held = await getHeldAlerts(prisma, { userId: ada.id, now: minutesLater(32) });
+    expect(held.map((alert) => [alert.id, alert.leaseExpired])).toEqual([
+      [high, true],
+      [middle, false],
+    ]);
+  });
+});
+
+describe("releasing", () => {
+  it("the holder releases by hand, audited; releasing again changes nothing", async () => {
+    const { high } = await threeAlerts();
+    await claimNextAlert(prisma, { actor: ada, now: NOW });
+    const released = await releaseAlert(prisma, { actor: ada, alertId: high, now: NOW, reason: "need a colleague's view" });
+    expect(released.released).toBe(true);
+    expect(released.alert).toMatchObject({ state: "waiting", assignedToId: null, leaseExpiresAt: null });
+    const event = await prisma.auditEvent.findFirstOrThrow({ where: { action: "alert.released", subjectId: high } });
+    expect(event.payload).toMatchObject({ reason: "need a colleague's view" });
+
+    expect((await releaseAlert(prisma, { actor: ada, alertId: high, now: NOW })).released).toBe(false);
+    expect(await prisma.auditEvent.count({ where: { action: "alert.released", subjectId: high } })).toBe(1);
+    // Back at the front of the queue.
+    expect((await claimNextAlert(prisma, { actor: ben, now: NOW }))!.id).toBe(high);
+  });
+
+  it("another analyst cannot release it; a supervisor can", async () => {
+    const { high } = await threeAlerts();
+    await claimNextAlert(prisma, { actor: ada, now: NOW });
+    await expect(releaseAlert(prisma, { actor: ben, alertId: high, now: NOW })).rejects.toThrow(/only they or a supervisor/);
+    const released = await releaseAlert(prisma, { actor: supervisor, alertId: high, now: NOW, reason: "Ada is off sick" });
+    expect(released.released).toBe(true);
+    const event = await prisma.auditEvent.findFirstOrThrow({ where: { action: "alert.released", subjectId: high } });
+    expect(event.actorId).toBe(supervisor.id);
+    expect((event.payload as { reason: string }).reason).toContain(ada.id);
+  });
+});
+
+describe("closing needs the hold", () => {
+  const inReviewBy = (id: string | null) => ({ id: "a", state: "in_review", assignedToId: id });
+
+  it("the holder may close", () => {
+    expect(() => assertHeldBy(inReviewBy(ada.id), ada)).not.toThrow();
+  });
+
+  it("anyone else is refused with a clear message", () => {
+    expect(() => assertHeldBy(inReviewBy(ada.id), ben)).toThrow(/Another analyst holds this alert, so you cannot close it/);
+    expect(() => assertHeldBy(inReviewBy(ada.id), supervisor)).toThrow(AppError);
+    expect(() => assertHeldBy({ id: "a", state: "waiting", assignedToId: null }, ada)).toThrow(/Claim this alert before recording an outcome/);
+    expect(() => assertHeldBy({ id: "a", state: "closed", assignedToId: ada.id }, ada)).toThrow(/already closed/);
+  });
+});
