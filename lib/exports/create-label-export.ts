@@ -15,7 +15,7 @@ import { AppError, isAppError } from "@/lib/errors";
 import { auditActorOf, type ApiClientActor, type UserActor } from "@/lib/auth/actor";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditContext } from "@/lib/audit/schemas";
-import { countLabelExportRows, writeLabelExport } from "@/lib/exports/stream-label-export";
+import { writeLabelExport } from "@/lib/exports/stream-label-export";
 import { choicesRecord, FORMAT_EXTENSION, labelExportChoicesSchema, type LabelExportChoices } from "@/lib/exports/schemas";
 
 export interface ExportHandles {
@@ -136,9 +136,6 @@ async function runExport(handles: ExportHandles, options: RunOptions): Promise<F
   let sinkError: Error | undefined;
   let rowCount = 0;
   try {
-    const expected = await countLabelExportRows(pool, { choices });
-    await prisma.labelExport.update({ where: { id: exportId }, data: { expectedRowCount: expected, progressAt: new Date() } });
-
     if (partPath && directory) {
       await mkdir(directory, { recursive: true });
       sink = createWriteStream(partPath);
@@ -158,6 +155,9 @@ async function runExport(handles: ExportHandles, options: RunOptions): Promise<F
       batchSize: options.batchSize,
       rowGroupRows: options.rowGroupRows,
       metadata: { "triage_desk.export_id": exportId, "triage_desk.choices": JSON.stringify(options.record) },
+      onCount: async (expected) => {
+        await prisma.labelExport.update({ where: { id: exportId }, data: { expectedRowCount: expected, progressAt: new Date() } });
+      },
       onProgress: async (written) => {
         rowCount = written;
         if (performance.now() - lastUpdate < interval) return;

@@ -192,3 +192,55 @@ export const LABEL_EXPORT_DICTIONARY = {
     meaning: "Horvitz–Thompson weight: 1/π for below-the-line samples, 1 for ordinary alerts. Weighted estimates over the export stand for every transaction the samples were drawn from.",
   },
 } as const satisfies Record<LabelExportColumn, ColumnInfo>;
+
+// ---------------------------------------------------------------------------------------------------
+// The choices as text: the screen's form fields and the API's query parameters use the same names.
+//   modelVersion (repeatable: an id, or "<model name>@<version>" in the API), from, to, asOf,
+//   maturityDays, keepInconclusive, keepUnreviewed, includeBelowTheLine, format.
+
+const flag = (fallback: boolean) =>
+  z.preprocess(
+    (value) => (Array.isArray(value) ? value.at(-1) : value),
+    z
+      .enum(["on", "true", "1", "false", "0", ""], { error: "expected true or false" })
+      .optional()
+      .transform((value) => (value === undefined ? fallback : value === "on" || value === "true" || value === "1")),
+  );
+
+/** One value of a field that a query string or form may repeat (the last wins); "" counts as absent. */
+const single = <T extends z.ZodType>(schema: T) => z.preprocess((value) => (Array.isArray(value) ? value.at(-1) : value === "" ? undefined : value), schema);
+
+export const labelExportParamsSchema = z.object({
+  modelVersion: z.preprocess(
+    (value) => (value === undefined || value === "" ? [] : Array.isArray(value) ? value : [value]),
+    z.array(z.string().min(1).max(200)).min(1, { error: "choose at least one model version" }).max(50),
+  ),
+  from: single(z.string({ error: "expected the start of the range (a date, UTC)" })),
+  /** Defaults to asOf. */
+  to: single(z.string().optional()),
+  /** Defaults to now. */
+  asOf: single(z.string().optional()),
+  /** Defaults to the Settings' label maturity (metrics.labelMaturityDays). */
+  maturityDays: single(z.string().regex(/^\d{1,3}$/, { error: "expected whole days, 0–730" }).optional()),
+  keepInconclusive: flag(false),
+  keepUnreviewed: flag(false),
+  includeBelowTheLine: flag(true),
+  format: single(exportFormatSchema.optional()),
+});
+export type LabelExportParams = z.output<typeof labelExportParamsSchema>;
+
+/** Params (with model versions already resolved to ids) → choices for labelExportChoicesSchema. */
+export function choicesFromParams(params: LabelExportParams, resolved: { modelVersionIds: string[]; now: Date; defaultMaturityDays: number }): LabelExportChoicesInput {
+  const asOf = params.asOf ?? resolved.now.toISOString();
+  return {
+    modelVersionIds: resolved.modelVersionIds,
+    occurredFrom: params.from,
+    occurredTo: params.to ?? asOf,
+    asOf,
+    maturityDays: params.maturityDays === undefined ? resolved.defaultMaturityDays : Number(params.maturityDays),
+    keepInconclusive: params.keepInconclusive,
+    keepUnreviewed: params.keepUnreviewed,
+    includeBelowTheLine: params.includeBelowTheLine,
+    format: params.format ?? "csv",
+  };
+}

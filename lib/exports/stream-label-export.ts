@@ -39,57 +39,72 @@ const OUTPUT: Record<LabelExportColumn, string> = {
   label_received_at: `CASE WHEN r.ext_source IS NOT NULL THEN ${iso("r.ext_received_at")} WHEN ${HAS_LABEL} THEN ${iso("r.closed_at")} END`,
   overrides_outcome: "(r.ext_source IS NOT NULL AND r.outcome IS NOT NULL)",
   outcome: "r.outcome",
-  second_review: "coalesce(r.second_review, false)",
+  second_review: "r.second_review",
   reviewer_id: "r.reviewer_id",
   below_the_line: "r.below_the_line",
   inclusion_probability: "r.inclusion_probability",
   weight: "CASE WHEN r.below_the_line THEN 1 / r.inclusion_probability ELSE 1::double precision END",
 };
 
-/** The export as one statement: $1 model version ids, $2 occurredFrom, $3 occurredTo, $4 asOf,
- * $5 maturity cut-off, $6 keepInconclusive, $7 keepUnreviewed, $8 includeBelowTheLine. */
+// The selection of alerts, used twice: for the rows, and to limit the labels that are read.
+const SELECTED_ALERTS = (alias: string) => `
+        ${alias}.model_version_id = ANY($1::uuid[])
+        AND ${alias}.occurred_at >= $2 AND ${alias}.occurred_at < $3
+        AND ${alias}.occurred_at <= $5
+        AND ${alias}.received_at <= $4
+        AND ($8 OR NOT ${alias}.below_the_line)`;
+
+/**
+ * The export as one statement: $1 model version ids, $2 occurredFrom, $3 occurredTo, $4 asOf,
+ * $5 maturity cut-off, $6 keepInconclusive, $7 keepUnreviewed, $8 includeBelowTheLine.
+ *
+ * Written with plain joins (outcomes are unique per alert and round) and one DISTINCT ON for the
+ * latest external label, so that PostgreSQL can choose hash joins for a million-row export and
+ * index lookups for a small one; LATERAL … LIMIT 1 subqueries would force a lookup per alert.
+ */
 export function labelExportQuery(choices: LabelExportChoices): { text: string; values: unknown[] } {
   const text = `
     SELECT ${LABEL_EXPORT_COLUMNS.map((column) => `${OUTPUT[column]} AS ${column}`).join(",\n           ")}
     FROM (
-      SELECT a.id AS alert_id, a.external_id, mv.model_name, mv.version AS model_version, a.score,
-             -- A probability from a calibration map fitted after asOf was not what the desk held then.
-             CASE WHEN cm.fitted_at > $4 THEN NULL ELSE a.probability END AS probability,
-             -- Exact as a double below 2^53 minor units, so pg hands JavaScript a number.
-             a.amount_minor::double precision AS amount_minor,
-             a.currency::text AS currency, a.channel, a.merchant_category_code::text AS merchant_category_code,
-             a.merchant_country::text AS merchant_country, a.occurred_at,
-             fo.outcome, fo.closed_at, fo.second_review, fo.reviewer_id,
-             ext.label AS ext_label, ext.source AS ext_source, ext.observed_at AS ext_observed_at, ext.received_at AS ext_received_at,
-             a.below_the_line, a.inclusion_probability
-      FROM alerts a
-      JOIN model_versions mv ON mv.id = a.model_version_id
-      LEFT JOIN calibration_maps cm ON cm.id = a.calibration_map_id
-      -- The analyst outcome as of asOf: round 2 if closed by then, else round 1 unless round 1 was
-      -- still waiting for its second review at asOf (a round 2 exists now, or the alert waits for one).
-      LEFT JOIN LATERAL (
-        SELECT o.outcome, o.closed_at, o.review_round = 2 AS second_review, u.pseudonym AS reviewer_id
-        FROM outcomes o
-        JOIN users u ON u.id = o.reviewer_id
-        WHERE o.alert_id = a.id AND o.closed_at <= $4
-          AND (o.review_round = 2 OR NOT (a.state = 'second_review'
-               OR EXISTS (SELECT 1 FROM outcomes later WHERE later.alert_id = a.id AND later.review_round = 2)))
-        ORDER BY o.review_round DESC
-        LIMIT 1
-      ) fo ON true
-      -- The external label known at asOf (received_at ≤ asOf); the latest observed wins.
-      LEFT JOIN LATERAL (
-        SELECT l.label, l.source, l.observed_at, l.received_at
-        FROM labels l
-        WHERE l.alert_id = a.id AND l.source IN ('chargeback', 'customer_report') AND l.received_at <= $4
-        ORDER BY l.observed_at DESC, l.received_at DESC, l.source, l.id DESC
-        LIMIT 1
-      ) ext ON true
-      WHERE a.model_version_id = ANY($1::uuid[])
-        AND a.occurred_at >= $2 AND a.occurred_at < $3
-        AND a.occurred_at <= $5
-        AND a.received_at <= $4
-        AND ($8 OR NOT a.below_the_line)
+      SELECT j.*,
+             CASE j.final_round WHEN 2 THEN j.o2_outcome WHEN 1 THEN j.o1_outcome END AS outcome,
+             CASE j.final_round WHEN 2 THEN j.o2_closed_at WHEN 1 THEN j.o1_closed_at END AS closed_at,
+             coalesce(j.final_round = 2, false) AS second_review,
+             CASE j.final_round WHEN 2 THEN j.o2_reviewer WHEN 1 THEN j.o1_reviewer END AS reviewer_id
+      FROM (
+        SELECT a.id AS alert_id, a.external_id, mv.model_name, mv.version AS model_version, a.score,
+               -- A probability from a calibration map fitted after asOf was not what the desk held then.
+               CASE WHEN cm.fitted_at > $4 THEN NULL ELSE a.probability END AS probability,
+               -- Exact as a double below 2^53 minor units, so pg hands JavaScript a number.
+               a.amount_minor::double precision AS amount_minor,
+               a.currency::text AS currency, a.channel, a.merchant_category_code::text AS merchant_category_code,
+               a.merchant_country::text AS merchant_country, a.occurred_at,
+               -- The analyst outcome as of asOf: round 2 if closed by then; else round 1 if closed by
+               -- then and not waiting for a second review at asOf (a round 2 exists, closed later, or
+               -- the alert still waits for one).
+               CASE WHEN o2.closed_at <= $4 THEN 2
+                    WHEN o1.closed_at <= $4 AND o2.id IS NULL AND a.state <> 'second_review' THEN 1 END AS final_round,
+               o1.outcome AS o1_outcome, o1.closed_at AS o1_closed_at, u1.pseudonym AS o1_reviewer,
+               o2.outcome AS o2_outcome, o2.closed_at AS o2_closed_at, u2.pseudonym AS o2_reviewer,
+               ext.label AS ext_label, ext.source AS ext_source, ext.observed_at AS ext_observed_at, ext.received_at AS ext_received_at,
+               a.below_the_line, a.inclusion_probability
+        FROM alerts a
+        JOIN model_versions mv ON mv.id = a.model_version_id
+        LEFT JOIN calibration_maps cm ON cm.id = a.calibration_map_id
+        LEFT JOIN outcomes o1 ON o1.alert_id = a.id AND o1.review_round = 1
+        LEFT JOIN users u1 ON u1.id = o1.reviewer_id
+        LEFT JOIN outcomes o2 ON o2.alert_id = a.id AND o2.review_round = 2
+        LEFT JOIN users u2 ON u2.id = o2.reviewer_id
+        -- The external label known at asOf (received_at ≤ asOf); the latest observed wins.
+        LEFT JOIN (
+          SELECT DISTINCT ON (l.alert_id) l.alert_id, l.label, l.source, l.observed_at, l.received_at
+          FROM labels l
+          WHERE l.source IN ('chargeback', 'customer_report') AND l.received_at <= $4
+            AND l.alert_id IN (SELECT s.id FROM alerts s WHERE ${SELECTED_ALERTS("s")})
+          ORDER BY l.alert_id, l.observed_at DESC, l.received_at DESC, l.source, l.id DESC
+        ) ext ON ext.alert_id = a.id
+        WHERE ${SELECTED_ALERTS("a")}
+      ) j
     ) r
     WHERE ${HAS_LABEL}
        OR ($6 AND r.outcome = 'inconclusive')
@@ -110,33 +125,53 @@ export function labelExportQuery(choices: LabelExportChoices): { text: string; v
   };
 }
 
-/** How many rows the export will have (for progress; a separate snapshot, so it may differ by a few
- * rows from the export itself if outcomes are being recorded at the same moment). */
-export async function countLabelExportRows(pool: pg.Pool, options: { choices: LabelExportChoices }): Promise<number> {
-  const { text, values } = labelExportQuery(options.choices);
-  const result = await pool.query<{ n: string }>(`SELECT count(*) AS n FROM (${text}) export_rows`, values);
-  return Number(result.rows[0].n);
+export interface StreamLabelExportOptions {
+  choices: LabelExportChoices;
+  batchSize?: number;
+  /** Called once, before the first batch, with the number of rows the export will have. */
+  onCount?: (rowCount: number) => void | Promise<void>;
 }
 
-/** The export's rows in batches, read with a cursor on one pooled connection (one snapshot). */
-export async function* streamLabelExportRows(pool: pg.Pool, options: { choices: LabelExportChoices; batchSize?: number }): AsyncGenerator<LabelExportRow[]> {
+/**
+ * The export's rows in batches, read with a cursor on one pooled connection. The count and the rows
+ * come from one REPEATABLE READ transaction: one snapshot, so the count is exactly the number of
+ * rows that follow even while outcomes are being recorded.
+ */
+export async function* streamLabelExportRows(pool: pg.Pool, options: StreamLabelExportOptions): AsyncGenerator<LabelExportRow[]> {
   const { text, values } = labelExportQuery(options.choices);
   const client = await pool.connect();
-  const cursor = client.query(new Cursor<LabelExportRow>(text, values));
-  let failed = false;
+  let cursor: Cursor<LabelExportRow> | undefined;
+  let open = false;
+  let broken = false;
   try {
+    await client.query("BEGIN ISOLATION LEVEL REPEATABLE READ READ ONLY");
+    open = true;
+    // The final sort of a large export (and its hash joins) stays in memory instead of spilling in
+    // 4 MB runs (the default); the setting ends with this transaction.
+    await client.query("SET LOCAL work_mem = '64MB'");
+    if (options.onCount) {
+      const counted = await client.query<{ n: string }>(`SELECT count(*) AS n FROM (${text}) export_rows`, values);
+      await options.onCount(Number(counted.rows[0].n));
+    }
+    cursor = client.query(new Cursor<LabelExportRow>(text, values));
     for (;;) {
       const rows = await cursor.read(options.batchSize ?? DEFAULT_BATCH_SIZE);
-      if (rows.length === 0) return;
+      if (rows.length === 0) break;
       yield rows;
     }
+    await cursor.close();
+    cursor = undefined;
+    await client.query("COMMIT");
+    open = false;
   } catch (error) {
-    failed = true;
+    broken = true;
     throw error;
   } finally {
-    await cursor.close().catch(() => undefined);
+    // Also reached when the consumer stops early (an abandoned download): close and roll back.
+    if (cursor) await cursor.close().catch(() => undefined);
+    if (open) await client.query("ROLLBACK").catch(() => (broken = true));
     // A connection whose query failed mid-stream is dropped rather than handed to the next caller.
-    client.release(failed);
+    client.release(broken);
   }
 }
 
@@ -147,6 +182,8 @@ export interface WriteLabelExportOptions {
   rowGroupRows?: number;
   /** Footer metadata of a Parquet file. */
   metadata?: Record<string, string>;
+  /** Called once before the first batch with the number of rows to come. */
+  onCount?: (rowCount: number) => void | Promise<void>;
   /** Called after each batch with the rows written so far. */
   onProgress?: (rowsWritten: number) => void | Promise<void>;
 }
@@ -155,7 +192,7 @@ export interface WriteLabelExportOptions {
 export async function writeLabelExport(pool: pg.Pool, options: WriteLabelExportOptions): Promise<{ rowCount: number }> {
   const writer = createLabelExportWriter(options.choices.format, options.sink, { metadata: options.metadata, rowGroupRows: options.rowGroupRows });
   let rowCount = 0;
-  for await (const rows of streamLabelExportRows(pool, { choices: options.choices, batchSize: options.batchSize })) {
+  for await (const rows of streamLabelExportRows(pool, { choices: options.choices, batchSize: options.batchSize, onCount: options.onCount })) {
     await writer.write(rows);
     rowCount += rows.length;
     await options.onProgress?.(rowCount);

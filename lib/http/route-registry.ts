@@ -20,6 +20,9 @@ export const apiRouteAccess = {
   "GET /api/v1/ingest-batches/[id]/rejected": { permission: "ingest.view" },
   "GET /api/v1/model-versions": { scope: "any", permission: "model_health.view" },
   "POST /api/v1/model-versions": { permission: "model_versions.manage" },
+  // Label exports: API tokens with exports:read; signed-in people who may make exports (stream) or see them (kept files).
+  "GET /api/v1/label-exports": { scope: "exports:read", permission: "label_exports.create" },
+  "GET /api/v1/label-exports/[id]/file": { scope: "exports:read", permission: "label_exports.view" },
 } as const satisfies Record<string, ApiRouteAccess>;
 
 export type ApiRouteKey = keyof typeof apiRouteAccess;
@@ -34,6 +37,7 @@ export const serverActionAccess = {
   "app/(desk)/admin/users/actions.ts#reactivateUserAction": "users.manage",
   "app/(desk)/admin/api-clients/actions.ts#createApiClientAction": "api_clients.manage",
   "app/(desk)/admin/api-clients/actions.ts#revokeApiClientAction": "api_clients.manage",
+  "app/(desk)/label-exports/actions.ts#createLabelExportAction": "label_exports.create",
 } as const satisfies Record<string, ServerActionAccess>;
 
 export type ServerActionKey = keyof typeof serverActionAccess;
