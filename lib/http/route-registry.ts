@@ -23,6 +23,10 @@ export const apiRouteAccess = {
   // Label exports: API tokens with exports:read; signed-in people who may make exports (stream) or see them (kept files).
   "GET /api/v1/label-exports": { scope: "exports:read", permission: "label_exports.create" },
   "GET /api/v1/label-exports/[id]/file": { scope: "exports:read", permission: "label_exports.view" },
+  // The queue in take-next order, for wallboards: API tokens with metrics:read, or anyone signed in.
+  "GET /api/v1/queue": { scope: "metrics:read", permission: "queue.view" },
+  // On-demand calibration refit: supervisors and admins (no API scope covers it).
+  "POST /api/v1/model-versions/[id]/refit": { permission: "calibration.refit" },
 } as const satisfies Record<string, ApiRouteAccess>;
 
 export type ApiRouteKey = keyof typeof apiRouteAccess;
