@@ -8,7 +8,7 @@ export interface IngestBatchSummary {
   kind: IngestKind;
   channel: IngestChannel;
   receivedAt: Date;
-  /** The API client's name, the person's email, or "system" for the demo and other tools. */
+  /** "api:<client name>", the person's email, or the command's or demo's actor name (cli:<os user>, demo-loader). */
   sender: string;
   fileName: string | null;
   rowCount: number;
@@ -30,12 +30,15 @@ export async function listIngestBatches(db: DbOrTx, options: ListIngestBatchesOp
   const kind = options.kind ?? null;
   const batches = await db.$queryRaw<IngestBatchSummary[]>`
     SELECT b.id, b.kind, b.channel, b.received_at AS "receivedAt",
-           coalesce('api:' || c.name, u.email, 'system') AS sender, b.file_name AS "fileName",
+           coalesce('api:' || c.name, u.email, e.actor_label, 'system') AS sender, b.file_name AS "fileName",
            b.row_count AS "rowCount", b.accepted, b.duplicate, b.conflict, b.rejected,
            jsonb_array_length(b.errors) AS "problemCount"
       FROM ingest_batches b
       LEFT JOIN api_clients c ON c.id = b.api_client_id
       LEFT JOIN users u ON u.id = b.user_id
+      -- Commands and the demo act as system actors with a name (cli:<os user>, demo-loader); their
+      -- batch's audit event keeps it (audit_events_subject_idx finds it).
+      LEFT JOIN audit_events e ON e.subject_type = 'ingest_batch' AND e.subject_id = b.id::text AND e.action = 'ingest.batch_received'
      WHERE ${kind}::text IS NULL OR b.kind = ${kind}
      ORDER BY b.received_at DESC, b.id
      LIMIT ${options.limit} OFFSET ${options.offset ?? 0}`;
