@@ -5,11 +5,21 @@
 import { useSyncExternalStore } from "react";
 
 const noSubscription = () => () => undefined;
+// dateStyle/timeStyle cannot be combined with timeZoneName, so the parts are named one by one.
+const localFormat = new Intl.DateTimeFormat(undefined, {
+  year: "numeric",
+  month: "short",
+  day: "numeric",
+  hour: "2-digit",
+  minute: "2-digit",
+  second: "2-digit",
+  timeZoneName: "short",
+});
 
 export function LocalTime({ iso, children }: { iso: string; children: React.ReactNode }) {
   const local = useSyncExternalStore(
     noSubscription,
-    () => `${new Intl.DateTimeFormat(undefined, { dateStyle: "medium", timeStyle: "medium", timeZoneName: "short" }).format(new Date(iso))} (your time)`,
+    () => `${localFormat.format(new Date(iso))} (your time)`,
     () => undefined,
   );
   return (

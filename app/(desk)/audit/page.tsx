@@ -21,6 +21,9 @@ export const dynamic = "force-dynamic";
 
 const families = [...new Set(auditActions.map((action) => `${action.split(".")[0]}.*`))];
 const DAY = /^\d{4}-\d{2}-\d{2}$/;
+// A date input can only hold a valid calendar day; anything else (an instant from an API link, a
+// mistyped day being reported) stays visible and editable as text instead of vanishing.
+const dateInputType = (value: string, errors: string[]) => (value === "" || (DAY.test(value) && errors.length === 0) ? "date" : "text");
 
 type SearchParams = Record<string, string | string[] | undefined>;
 
@@ -50,6 +53,8 @@ export default async function AuditTrailPage({ searchParams }: { searchParams: P
     return (Array.isArray(value) ? value[0] : value) ?? "";
   };
   const issueFor = (name: string) => issues.filter((issue) => issue.path === name).map((issue) => issue.message);
+  // Ties a field to its error message for screen readers.
+  const invalid = (name: string) => (issueFor(name).length > 0 ? { "aria-invalid": true, "aria-describedby": `audit-${name}-error` } : {});
   const limit = query?.page.limit ?? AUDIT_PAGE_SIZE_DEFAULT;
 
   return (
@@ -90,7 +95,7 @@ export default async function AuditTrailPage({ searchParams }: { searchParams: P
       <form method="get" action="/audit" className="panel space-y-3 p-3" aria-label="Filter the audit trail">
         <div className="grid gap-3 sm:grid-cols-2 lg:grid-cols-4">
           <Field id="audit-preset" label="Question" errors={issueFor("preset")}>
-            <select id="audit-preset" name="preset" defaultValue={first("preset")} className="field w-full">
+            <select id="audit-preset" name="preset" {...invalid("preset")} defaultValue={first("preset")} className="field w-full">
               <option value="">All events</option>
               {Object.entries(auditPresets).map(([value, label]) => (
                 <option key={value} value={value}>
@@ -100,10 +105,10 @@ export default async function AuditTrailPage({ searchParams }: { searchParams: P
             </select>
           </Field>
           <Field id="audit-actor" label="Actor" hint="e-mail, API client name or id" errors={issueFor("actor")}>
-            <input id="audit-actor" name="actor" defaultValue={first("actor")} className="field w-full" autoComplete="off" spellCheck={false} />
+            <input id="audit-actor" name="actor" {...invalid("actor")} defaultValue={first("actor")} className="field w-full" autoComplete="off" spellCheck={false} />
           </Field>
           <Field id="audit-action" label="Action" hint="e.g. outcome.recorded or alert.*" errors={issueFor("action")}>
-            <input id="audit-action" name="action" list="audit-actions" defaultValue={first("action")} className="field w-full font-mono" autoComplete="off" spellCheck={false} />
+            <input id="audit-action" name="action" {...invalid("action")} list="audit-actions" defaultValue={first("action")} className="field w-full font-mono" autoComplete="off" spellCheck={false} />
             <datalist id="audit-actions">
               {[...families, ...auditActions].map((action) => (
                 <option key={action} value={action} />
@@ -111,16 +116,16 @@ export default async function AuditTrailPage({ searchParams }: { searchParams: P
             </datalist>
           </Field>
           <Field id="audit-alert" label="Alert" hint="internal or external id" errors={issueFor("alert")}>
-            <input id="audit-alert" name="alert" defaultValue={first("alert")} className="field w-full font-mono" autoComplete="off" spellCheck={false} />
+            <input id="audit-alert" name="alert" {...invalid("alert")} defaultValue={first("alert")} className="field w-full font-mono" autoComplete="off" spellCheck={false} />
           </Field>
           <Field id="audit-from" label="From (UTC day, inclusive)" errors={issueFor("from")}>
-            <input id="audit-from" name="from" type={DAY.test(first("from")) || first("from") === "" ? "date" : "text"} defaultValue={first("from")} className="field w-full" />
+            <input id="audit-from" name="from" {...invalid("from")} type={dateInputType(first("from"), issueFor("from"))} defaultValue={first("from")} className="field w-full" />
           </Field>
           <Field id="audit-to" label="To (UTC day, inclusive)" errors={issueFor("to")}>
-            <input id="audit-to" name="to" type={DAY.test(first("to")) || first("to") === "" ? "date" : "text"} defaultValue={first("to")} className="field w-full" />
+            <input id="audit-to" name="to" {...invalid("to")} type={dateInputType(first("to"), issueFor("to"))} defaultValue={first("to")} className="field w-full" />
           </Field>
           <Field id="audit-limit" label="Rows per page" errors={issueFor("limit")}>
-            <select id="audit-limit" name="limit" defaultValue={String(limit)} className="field w-full">
+            <select id="audit-limit" name="limit" {...invalid("limit")} defaultValue={String(limit)} className="field w-full">
               {[50, 100, 200, 500].map((size) => (
                 <option key={size} value={size}>
                   {size}
@@ -161,7 +166,11 @@ function Field({ id, label, hint, errors, children }: { id: string; label: strin
         {hint && <span className="ml-1 font-normal text-ink-faint">({hint})</span>}
       </label>
       {children}
-      {errors.length > 0 && <p className="text-xs text-overdue">{errors.join(" ")}</p>}
+      {errors.length > 0 && (
+        <p id={`${id}-error`} className="text-xs text-overdue">
+          {errors.join(" ")}
+        </p>
+      )}
     </div>
   );
 }
