@@ -9,6 +9,8 @@ import type { ApiRouteAccess, ServerActionAccess } from "@/lib/http/route-access
 
 export const apiRouteAccess = {
   "GET /api/v1/whoami": { scope: "any", permission: "account.manage_own" },
+  // The API's own description: any valid token or anyone signed in.
+  "GET /api/v1/openapi.json": { scope: "any", permission: "account.manage_own" },
   // The audit trail: API tokens with metrics:read (a monitoring job checking the chain), or auditors, supervisors and admins.
   "GET /api/v1/audit/verify": { scope: "metrics:read", permission: "audit.view" },
   "GET /api/v1/audit/events": { scope: "metrics:read", permission: "audit.view" },
@@ -23,6 +25,9 @@ export const apiRouteAccess = {
   // Label exports: API tokens with exports:read; signed-in people who may make exports (stream) or see them (kept files).
   "GET /api/v1/label-exports": { scope: "exports:read", permission: "label_exports.create" },
   "GET /api/v1/label-exports/[id]/file": { scope: "exports:read", permission: "label_exports.view" },
+  // Workload and capacity planner: API tokens with metrics:read; supervisors, admins and auditors.
+  "GET /api/v1/workload": { scope: "metrics:read", permission: "workload.view" },
+  "GET /api/v1/capacity": { scope: "metrics:read", permission: "workload.view" },
   // The queue in take-next order, for wallboards: API tokens with metrics:read, or anyone signed in.
   "GET /api/v1/queue": { scope: "metrics:read", permission: "queue.view" },
   // On-demand calibration refit: supervisors and admins (no API scope covers it).
@@ -42,6 +47,18 @@ export const serverActionAccess = {
   "app/(desk)/admin/api-clients/actions.ts#createApiClientAction": "api_clients.manage",
   "app/(desk)/admin/api-clients/actions.ts#revokeApiClientAction": "api_clients.manage",
   "app/(desk)/label-exports/actions.ts#createLabelExportAction": "label_exports.create",
+  "app/(desk)/workload/actions.ts#releaseAnalystAlertsAction": "workload.manage",
+  "app/(desk)/workload/actions.ts#reassignAlertAction": "workload.manage",
+  "app/(desk)/queue/actions.ts#takeNextAction": "alert.work",
+  "app/(desk)/alerts/[id]/actions.ts#claimAlertAction": "alert.work",
+  "app/(desk)/alerts/[id]/actions.ts#releaseAlertAction": "alert.work",
+  "app/(desk)/alerts/[id]/actions.ts#recordOutcomeAction": "alert.work",
+  "app/(desk)/alerts/[id]/actions.ts#recordSecondReviewAction": "alert.second_review",
+  // Settings: queue (supervisors, admins), costs (admins), calibration minimums and refits (supervisors, admins).
+  "app/(desk)/settings/actions.ts#saveQueueSettingsAction": "settings.queue.edit",
+  "app/(desk)/settings/actions.ts#saveCostSettingsAction": "settings.costs.edit",
+  "app/(desk)/settings/actions.ts#saveCalibrationSettingsAction": "calibration.refit",
+  "app/(desk)/settings/actions.ts#refitCalibrationAction": "calibration.refit",
 } as const satisfies Record<string, ServerActionAccess>;
 
 export type ServerActionKey = keyof typeof serverActionAccess;
