@@ -21,8 +21,9 @@ export interface WriterOptions {
 }
 
 /** Rows per Parquet row group: large enough for good compression and column statistics, small
- * enough that one group's column arrays stay a few tens of megabytes. */
-export const DEFAULT_ROW_GROUP_ROWS = 50_000;
+ * enough that one group's column arrays and their encoding stay a few tens of megabytes. Measured on
+ * 100,000 rows: 50,000 → 391 MiB peak RSS, 20,000 → 318 MiB, 10,000 → 253 MiB, same file size. */
+export const DEFAULT_ROW_GROUP_ROWS = 20_000;
 
 export function createLabelExportWriter(format: ExportFormat, sink: Writable, options: WriterOptions = {}): LabelExportWriter {
   switch (format) {
