@@ -189,7 +189,8 @@ export const LABEL_EXPORT_DICTIONARY = {
   weight: {
     type: "double",
     nullable: false,
-    meaning: "Horvitz–Thompson weight: 1/π for below-the-line samples, 1 for ordinary alerts. Weighted estimates over the export stand for every transaction the samples were drawn from.",
+    meaning:
+      "Horvitz–Thompson weight: 1/π for below-the-line samples, 1 for ordinary alerts. A weighted sum over the rows estimates the total over the scored transactions they were drawn from: an ordinary alert stands for itself, a sample for 1/π transactions below the threshold.",
   },
 } as const satisfies Record<LabelExportColumn, ColumnInfo>;
 
