@@ -4,6 +4,7 @@
 import { z } from "zod";
 import { alertRowSchema, labelRowSchema, modelVersionInputSchema, outcomeRowSchema } from "@/lib/ingest/schemas";
 import { apiRouteAccess } from "@/lib/http/route-registry";
+import { modelVersionMetricsAnswerSchema, reviewerMetricsAnswerSchema } from "@/lib/feedback/schemas";
 import type { ApiRouteAccess } from "@/lib/http/route-access";
 
 type JsonSchema = Record<string, unknown>;
@@ -83,6 +84,20 @@ const windowQuery: Parameter[] = [
   { name: "to", description: "End of the window (exclusive).", schema: { type: "string" } },
 ];
 
+const metricsWindowQuery: Parameter[] = [
+  { name: "window", description: "day, week (ISO week, Monday to Sunday, UTC) or custom (default).", schema: { type: "string", enum: ["day", "week", "custom"] } },
+  { name: "date", description: "The day, or a day of the week, for window=day|week (YYYY-MM-DD; default today).", schema: { type: "string", format: "date" } },
+  { name: "from", description: "First day of a custom window (YYYY-MM-DD; default 27 days before `to`).", schema: { type: "string", format: "date" } },
+  { name: "to", description: "Last day of a custom window, included (YYYY-MM-DD; default today).", schema: { type: "string", format: "date" } },
+  { name: "bucket", description: "Step of the series over time: day or week (default day up to 62 days, week beyond).", schema: { type: "string", enum: ["day", "week"] } },
+];
+
+const modelVersionMetricsQuery: Parameter[] = [
+  { name: "modelVersionId", description: "Only this model version (repeatable, kept in the order given); default every active version and every version with alerts in the window.", schema: { type: "string", format: "uuid" } },
+  { name: "driftCurrentDays", description: "PSI: the current window is the last N days of the window (default 14).", schema: { type: "integer", minimum: 1, maximum: 365 } },
+  { name: "driftReferenceDays", description: "PSI: the reference window is the N days just before the current one (default 28).", schema: { type: "integer", minimum: 1, maximum: 365 } },
+];
+
 function arrayOf(schema: JsonSchema): JsonSchema {
   return { type: "array", items: schema };
 }
@@ -123,13 +138,18 @@ export function buildOpenApiDocument(options: { channels: string[] }): JsonSchem
       query: [{ name: "capacity", description: "K, alerts the team can review per day.", schema: { type: "integer", minimum: 1 } }],
     },
     "GET /api/v1/metrics/model-versions": {
-      summary: "Per model version: outcome mix, realized precision (rate), calibration report (reliability table, Brier, ECE), ROC AUC and average precision on reviewed alerts, PSI, precision at k.",
-      query: windowQuery,
-      response: { type: "object", description: "Every rate in the answer has the shape of Rate.", properties: { rateShape: rateSchema } },
+      summary: "Per model version: outcome mix, realized precision (overall and over time), calibration report (reliability table, Brier, binned ECE), ROC AUC and average precision on reviewed alerts, PSI, precision at k.",
+      description:
+        "The Model health screen's numbers. Every rate is a Rate: value with its 95% Wilson interval and the counts behind it. Ground truth of an alert: its latest chargeback or customer report, else the final analyst outcome; inconclusive outcomes without a label are counted apart. Below-the-line samples are left out of the alerted-range numbers and reported apart, weighted by 1/π. Windows whose labels are not mature yet say `mature: false`. Score lists for AUC/AP and PSI hold all scores up to about 20,000 per list, a deterministic sample beyond (`sample`).",
+      query: [...metricsWindowQuery, ...modelVersionMetricsQuery],
+      response: schemaOf(modelVersionMetricsAnswerSchema),
     },
     "GET /api/v1/metrics/reviewers": {
-      summary: "Per reviewer: closed, outcome mix, hit rate (rate), observed over expected, false-clear rate (rate), median handling time, agreement (kappa).",
-      query: windowQuery,
+      summary: "Per reviewer: closed first reviews, outcome mix, hit rate, observed over expected, false-clear rate, median handling time, agreement (Cohen's kappa) with second reviewers; and the team.",
+      description:
+        "The Reviewer quality screen's numbers. `standsOut` is above or below only when the reviewer's whole 95% interval lies beyond the team's rate. API tokens receive reviewers' pseudonyms; names (displayName) only go to signed-in supervisors and auditors.",
+      query: metricsWindowQuery,
+      response: schemaOf(reviewerMetricsAnswerSchema),
     },
     "GET /api/v1/audit/verify": { summary: "Walk the audit hash chain: the count verified and the head hash, or the first broken link." },
     "GET /api/v1/audit/events": { summary: "Audit events filtered by actor, action, alert and time range, with paging." },

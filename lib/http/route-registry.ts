@@ -30,6 +30,10 @@ export const apiRouteAccess = {
   "GET /api/v1/capacity": { scope: "metrics:read", permission: "workload.view" },
   // The queue in take-next order, for wallboards: API tokens with metrics:read, or anyone signed in.
   "GET /api/v1/queue": { scope: "metrics:read", permission: "queue.view" },
+  // Feedback-loop metrics: API tokens with metrics:read; model health for anyone signed in, reviewer
+  // quality for supervisors and auditors (tokens get reviewers' pseudonyms, not their names).
+  "GET /api/v1/metrics/model-versions": { scope: "metrics:read", permission: "model_health.view" },
+  "GET /api/v1/metrics/reviewers": { scope: "metrics:read", permission: "reviewer_quality.view" },
   // On-demand calibration refit: supervisors and admins (no API scope covers it).
   "POST /api/v1/model-versions/[id]/refit": { permission: "calibration.refit" },
 } as const satisfies Record<string, ApiRouteAccess>;
