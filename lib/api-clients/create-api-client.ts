@@ -2,6 +2,8 @@
 // characters are stored (OWASP ASVS 5.0 §13.3, secrets not kept in clear; from memory).
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
+import { AUTH_TRANSACTION } from "@/lib/auth/transaction-options";
 import { AppError } from "@/lib/errors";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditContext } from "@/lib/audit/schemas";
@@ -57,5 +59,5 @@ export async function createApiClient(db: DbOrTx, options: CreateApiClientOption
     };
     return { client, token };
   };
-  return "$transaction" in db ? db.$transaction(run) : run(db);
+  return inTransaction(db, run, AUTH_TRANSACTION);
 }

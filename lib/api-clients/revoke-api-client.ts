@@ -2,6 +2,8 @@
 // revoked client changes nothing and writes no second event.
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
+import { AUTH_TRANSACTION } from "@/lib/auth/transaction-options";
 import { AppError } from "@/lib/errors";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditContext } from "@/lib/audit/schemas";
@@ -33,5 +35,5 @@ export async function revokeApiClient(db: DbOrTx, options: RevokeApiClientOption
     });
     return { id: client.id, name: client.name, revokedAt: options.now, alreadyRevoked: false };
   };
-  return "$transaction" in db ? db.$transaction(run) : run(db);
+  return inTransaction(db, run, AUTH_TRANSACTION);
 }

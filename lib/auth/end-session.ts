@@ -3,6 +3,8 @@
 // second event is written.
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
+import { AUTH_TRANSACTION } from "@/lib/auth/transaction-options";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditActor, AuditContext } from "@/lib/audit/schemas";
 import { hashToken } from "@/lib/auth/opaque-token";
@@ -41,5 +43,5 @@ export async function endSession(db: DbOrTx, options: EndSessionOptions): Promis
     });
     return { sessionId: session.id, userId: session.userId };
   };
-  return "$transaction" in db ? db.$transaction(run) : run(db);
+  return inTransaction(db, run, AUTH_TRANSACTION);
 }

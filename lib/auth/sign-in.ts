@@ -7,6 +7,8 @@
 // against the limit at once instead of all slipping past a check that none of them has updated yet.
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
+import { AUTH_TRANSACTION } from "@/lib/auth/transaction-options";
 import { AppError } from "@/lib/errors";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditActor, AuditContext } from "@/lib/audit/schemas";
@@ -52,10 +54,6 @@ function lockedMessage(scope: "account" | "address", until: Date, now: Date): st
   return `Too many failed sign-ins ${where}. Try again in ${minutes} minute${minutes === 1 ? "" : "s"}.`;
 }
 
-async function inTransaction<T>(db: DbOrTx, run: (tx: Prisma.TransactionClient) => Promise<T>): Promise<T> {
-  return "$transaction" in db ? db.$transaction(run) : run(db);
-}
-
 async function lockAttemptKeys(tx: Prisma.TransactionClient, email: string, ipAddress: string): Promise<void> {
   // Always the account first, then the address, so two attempts never wait on each other in a circle.
   await tx.$executeRaw`SELECT pg_advisory_xact_lock(hashtextextended(${`sign-in:email:${email}`}, 0))`;
@@ -72,24 +70,29 @@ export async function signIn(db: DbOrTx, options: SignInOptions): Promise<SignIn
   const context: AuditContext = { ipAddress, ...options.context };
 
   // 1. Refuse while locked; otherwise count this attempt as a failure until proven otherwise.
-  const admitted = await inTransaction(db, async (tx) => {
-    await lockAttemptKeys(tx, email, ipAddress);
-    const throttle = await checkSignInThrottle(tx, { email, ipAddress, now, policy });
-    if (throttle.lock) {
-      await recordAuditEvent(tx, {
-        actor: anonymous,
-        event: { action: "session.sign_in_failed", payload: { email, reason: `locked_${throttle.lock.scope}` } },
-        context,
-      });
-      return { refused: throttle.lock };
-    }
-    const attempt = await tx.signInAttempt.create({ data: { email, ipAddress, succeeded: false, attemptedAt: now }, select: { id: true } });
-    return { attemptId: attempt.id, delayMs: throttle.delayMs };
-  });
-  if ("refused" in admitted && admitted.refused) {
+  type Admission = { refused: { scope: "account" | "address"; until: Date } } | { refused: null; attemptId: bigint; delayMs: number };
+  const admitted = await inTransaction(
+    db,
+    async (tx): Promise<Admission> => {
+      await lockAttemptKeys(tx, email, ipAddress);
+      const throttle = await checkSignInThrottle(tx, { email, ipAddress, now, policy });
+      if (throttle.lock) {
+        await recordAuditEvent(tx, {
+          actor: anonymous,
+          event: { action: "session.sign_in_failed", payload: { email, reason: `locked_${throttle.lock.scope}` } },
+          context,
+        });
+        return { refused: throttle.lock };
+      }
+      const attempt = await tx.signInAttempt.create({ data: { email, ipAddress, succeeded: false, attemptedAt: now }, select: { id: true } });
+      return { refused: null, attemptId: attempt.id, delayMs: throttle.delayMs };
+    },
+    AUTH_TRANSACTION,
+  );
+  if (admitted.refused) {
     return { ok: false, reason: "locked", scope: admitted.refused.scope, until: admitted.refused.until, message: lockedMessage(admitted.refused.scope, admitted.refused.until, now) };
   }
-  const { attemptId, delayMs } = admitted as { attemptId: bigint; delayMs: number };
+  const { attemptId, delayMs } = admitted;
   if (delayMs > 0) await (options.wait ?? sleep)(delayMs);
 
   // 2. Check the password; an unknown account costs the same time as a wrong password.
@@ -115,7 +118,7 @@ export async function signIn(db: DbOrTx, options: SignInOptions): Promise<SignIn
       });
       const actor: UserActor = { type: "user", id: user.id, email: user.email, displayName: user.displayName, role, sessionId: session.sessionId };
       return { ok: true as const, user: actor, ...session };
-    });
+    }, AUTH_TRANSACTION);
   }
 
   // 3. Record the failure; when it reaches the limit, record the lock it starts.
@@ -135,5 +138,5 @@ export async function signIn(db: DbOrTx, options: SignInOptions): Promise<SignIn
       return { ok: false as const, reason: "locked" as const, scope: after.lock.scope, until: after.lock.until, message: `${INVALID_CREDENTIALS_MESSAGE} ${lockedMessage(after.lock.scope, after.lock.until, now)}` };
     }
     return { ok: false as const, reason: "invalid_credentials" as const, message: INVALID_CREDENTIALS_MESSAGE };
-  });
+  }, AUTH_TRANSACTION);
 }

@@ -3,6 +3,8 @@
 // password; §7.4.3, other sessions can be ended after a change of credentials; from memory).
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
+import { AUTH_TRANSACTION } from "@/lib/auth/transaction-options";
 import { AppError } from "@/lib/errors";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditContext } from "@/lib/audit/schemas";
@@ -50,5 +52,5 @@ export async function changeOwnPassword(db: DbOrTx, options: ChangeOwnPasswordOp
     });
     return { endedOtherSessions: ended.count };
   };
-  return "$transaction" in db ? db.$transaction(run) : run(db);
+  return inTransaction(db, run, AUTH_TRANSACTION);
 }

@@ -1,6 +1,8 @@
 // Changes a person's role. Takes effect on their next request: sessions carry no role of their own.
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
+import { AUTH_TRANSACTION } from "@/lib/auth/transaction-options";
 import { AppError } from "@/lib/errors";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditContext } from "@/lib/audit/schemas";
@@ -34,5 +36,5 @@ export async function changeRole(db: DbOrTx, options: ChangeRoleOptions): Promis
     });
     return { from: user.role, to: role.data, changed: true };
   };
-  return "$transaction" in db ? db.$transaction(run) : run(db);
+  return inTransaction(db, run, AUTH_TRANSACTION);
 }

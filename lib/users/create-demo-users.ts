@@ -1,6 +1,7 @@
 // The invented staff of the demo scenario (demo-data/people.ts), for local evaluation only.
 // Safe to repeat: people whose email already exists are left as they are.
 import type { DbOrTx } from "@/lib/db/client";
+import { isRootClient } from "@/lib/db/in-transaction";
 import { systemActor, type Actor } from "@/lib/auth/actor";
 import { demoPeople } from "@/demo-data/people";
 import { createUser } from "@/lib/users/create-user";
@@ -21,6 +22,6 @@ export async function createDemoUsers(db: DbOrTx, options: CreateDemoUsersOption
       await createUser(db, { actor, email: person.email, displayName: person.displayName, role: person.role, password: options.password });
     }
   };
-  await Promise.all(Array.from({ length: "$transaction" in db ? 4 : 1 }, worker));
+  await Promise.all(Array.from({ length: isRootClient(db) ? 4 : 1 }, worker));
   return { created: missing.map((person) => person.email), skipped: demoPeople.filter((person) => existing.has(person.email)).map((person) => person.email) };
 }

@@ -1,6 +1,8 @@
 // Creates a person with a role and an initial password, audited in the same transaction.
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
+import { AUTH_TRANSACTION } from "@/lib/auth/transaction-options";
 import { AppError } from "@/lib/errors";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditContext } from "@/lib/audit/schemas";
@@ -47,5 +49,5 @@ export async function createUser(db: DbOrTx, options: CreateUserOptions): Promis
     });
     return { ...user, openSessions: 0, lastSignInAt: null };
   };
-  return "$transaction" in db ? db.$transaction(run) : run(db);
+  return inTransaction(db, run, AUTH_TRANSACTION);
 }

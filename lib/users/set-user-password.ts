@@ -2,6 +2,8 @@
 // has forgotten theirs. Every session of that person ends, since whoever held them may not be them.
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
+import { AUTH_TRANSACTION } from "@/lib/auth/transaction-options";
 import { AppError } from "@/lib/errors";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditContext } from "@/lib/audit/schemas";
@@ -34,5 +36,5 @@ export async function setUserPassword(db: DbOrTx, options: SetUserPasswordOption
     });
     return { endedSessions: ended.count };
   };
-  return "$transaction" in db ? db.$transaction(run) : run(db);
+  return inTransaction(db, run, AUTH_TRANSACTION);
 }
