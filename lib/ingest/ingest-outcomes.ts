@@ -7,11 +7,15 @@
 // or being worked on the desk right now, is a conflict. The batch reads its reviewers and alerts in
 // two set-based queries (the alerts locked FOR UPDATE so that nobody claims one meanwhile), then
 // writes all outcomes with one INSERT and closes all alerts with one UPDATE. Every outcome gets its
-// outcome.recorded audit event in the same transaction, as on screen.
+// outcome.recorded audit event in the same transaction, and a second review its
+// second_review.confirmed or .overturned, as on screen. After the commit, each model version whose
+// alerts were closed gets the same automatic calibration refit check as after an outcome on screen.
 import "server-only";
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
 import { auditActorOf } from "@/lib/auth/actor";
+import { isRootClient } from "@/lib/db/in-transaction";
+import { refitAfterClosing } from "@/lib/outcomes/refit-after-closing";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import { outcomeRowSchema, type Outcome, type OutcomeRow } from "@/lib/ingest/schemas";
 import { validateRows } from "@/lib/ingest/validate-rows";
@@ -47,6 +51,7 @@ interface StoredOutcome {
 interface StoredAlert {
   id: string;
   externalId: string;
+  modelVersionId: string;
   state: string;
   outcomes: StoredOutcome[] | null;
 }
@@ -132,7 +137,7 @@ export async function ingestOutcomes(db: DbOrTx, options: IngestOutcomesOptions)
     else checked.push(item);
   }
 
-  return inBatchTransaction(db, async (tx) => {
+  const { answer, modelVersionIds } = await inBatchTransaction(db, async (tx) => {
     const batchId = await openIngestBatch(tx, { kind: "outcomes", channel: options.channel, actor: options.actor, fileName: options.fileName, now, rowCount: rows.length });
 
     const emails = new Set<string>();
@@ -203,6 +208,18 @@ export async function ingestOutcomes(db: DbOrTx, options: IngestOutcomesOptions)
             context: options.context,
           });
         }
+        if (reviews.length === 2) {
+          const [first, second] = reviews;
+          await recordAuditEvent(tx, {
+            actor,
+            event: {
+              action: second.outcome === first.outcome ? "second_review.confirmed" : "second_review.overturned",
+              payload: { alertId: alert.id, externalId: alert.externalId, firstOutcome: first.outcome, secondOutcome: second.outcome },
+            },
+            subject: { type: "alert", id: alert.id },
+            context: options.context,
+          });
+        }
       }
     }
 
@@ -221,7 +238,7 @@ export async function ingestOutcomes(db: DbOrTx, options: IngestOutcomesOptions)
       conflicts: conflicts.items,
       context: options.context,
     });
-    return {
+    const answer: IngestOutcomesAnswer = {
       batchId,
       ...counts,
       errors: errors.items,
@@ -231,7 +248,14 @@ export async function ingestOutcomes(db: DbOrTx, options: IngestOutcomesOptions)
       outcomesRecorded: rolledBack ? 0 : closings.reduce((sum, closing) => sum + closing.reviews.length, 0),
       rolledBack,
     };
+    return { answer, modelVersionIds: rolledBack ? [] : [...new Set(closings.map((closing) => closing.alert.modelVersionId))] };
   });
+
+  // Outside the batch transaction, after its commit; inside a caller's transaction the refit is theirs to run.
+  if (isRootClient(db)) {
+    for (const modelVersionId of modelVersionIds) await refitAfterClosing(db, { modelVersionId, now, context: options.context });
+  }
+  return answer;
 }
 
 function asStored(review: Review): StoredOutcome {
@@ -249,7 +273,7 @@ async function reviewersByEmail(tx: Prisma.TransactionClient, emails: string[]):
 async function lockAlerts(tx: Prisma.TransactionClient, externalIds: string[]): Promise<Map<string, StoredAlert>> {
   if (externalIds.length === 0) return new Map();
   const rows = await tx.$queryRaw<StoredAlert[]>`
-    SELECT a.id, a.external_id AS "externalId", a.state,
+    SELECT a.id, a.external_id AS "externalId", a.model_version_id AS "modelVersionId", a.state,
            (SELECT json_agg(json_build_object('round', o.review_round, 'outcome', o.outcome, 'reason', o.reason,
                                               'reviewerId', o.reviewer_id, 'claimedAt', o.claimed_at, 'closedAt', o.closed_at)
                             ORDER BY o.review_round)
@@ -283,17 +307,29 @@ async function insertOutcomes(tx: Prisma.TransactionClient, closings: Closing[],
              claimed_at timestamptz, closed_at timestamptz, handling_seconds integer)`;
 }
 
-/** Closes each alert with its final outcome: the second review's when there was one, else the first's. */
+/**
+ * Closes each alert with its final outcome: the second review's when there was one, else the first's.
+ * The claim columns end as they do on screen: a single review leaves its reviewer and claim time on
+ * the alert; a second review leaves both empty (the alert went back to the pool between the rounds).
+ */
 async function closeAlerts(tx: Prisma.TransactionClient, closings: Closing[]): Promise<void> {
   const records = closings.map(({ alert, reviews }) => {
     const last = reviews[reviews.length - 1];
-    return { alert_id: alert.id, claimed_at: reviews[0].claimedAt.toISOString(), closed_at: last.closedAt.toISOString(), final_outcome: last.outcome, closed_by: last.reviewerId };
+    const single = reviews.length === 1;
+    return {
+      alert_id: alert.id,
+      claimed_at: single ? reviews[0].claimedAt.toISOString() : null,
+      assigned_to_id: single ? reviews[0].reviewerId : null,
+      closed_at: last.closedAt.toISOString(),
+      final_outcome: last.outcome,
+    };
   });
   const updated = await tx.$executeRaw`
     UPDATE alerts a
        SET state = 'closed', final_outcome = r.final_outcome, claimed_at = r.claimed_at, closed_at = r.closed_at,
-           assigned_to_id = r.closed_by, lease_expires_at = NULL
-      FROM json_to_recordset(${JSON.stringify(records)}::json) AS r(alert_id uuid, claimed_at timestamptz, closed_at timestamptz, final_outcome text, closed_by uuid)
+           assigned_to_id = r.assigned_to_id, lease_expires_at = NULL
+      FROM json_to_recordset(${JSON.stringify(records)}::json)
+           AS r(alert_id uuid, claimed_at timestamptz, assigned_to_id uuid, closed_at timestamptz, final_outcome text)
      WHERE a.id = r.alert_id AND a.state = 'waiting'`;
   if (updated !== records.length) {
     // The alerts were locked and checked above; anything else is a bug, and the batch must not commit.
