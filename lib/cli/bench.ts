@@ -1,0 +1,256 @@
+// npm run bench [-- --scale N] — how fast Triage Desk is at a given number of alerts, measured on an
+// embedded PostgreSQL of its own (durable, like a real server) next to what the database itself can do
+// on the same machine in the same run. Prints a table and writes .bench/latest.json plus a dated copy.
+// Targets are those of issue 11, stated for 1,000,000 alerts on a 2-core machine.
+import { mkdir, mkdtemp, rm, writeFile, chmod } from "node:fs/promises";
+import os from "node:os";
+import path from "node:path";
+import pg from "pg";
+import { from as copyFrom, to as copyTo } from "pg-copy-streams";
+import { pipeline } from "node:stream/promises";
+import { Readable, Writable } from "node:stream";
+import { parseArguments, runCommand } from "@/lib/cli/run-command";
+import { ensureLocalServer } from "@/lib/db/local-server";
+import { createDatabaseIfMissing } from "@/lib/db/default-database";
+import { applyPendingMigrations } from "@/lib/db/migrations";
+import { createDatabaseHandles } from "@/lib/db/client";
+import { AppError } from "@/lib/errors";
+import { systemActor, type UserActor } from "@/lib/auth/actor";
+import { saveModelVersion } from "@/lib/model-versions/save-model-version";
+import { ingestAlerts } from "@/lib/ingest/ingest-alerts";
+import { updateSettings } from "@/lib/settings/update-settings";
+import { getSettings } from "@/lib/settings/get-settings";
+import { claimNextAlert } from "@/lib/queue/claim-next-alert";
+import { QUEUE_ORDER_BY } from "@/lib/queue/list-waiting-alerts";
+import { CLAIMED_ALERT_COLUMNS } from "@/lib/queue/claimed-alert-columns";
+import { fitIsotonicCalibration } from "@/lib/risk";
+import { seededRandom } from "@/demo-data/random";
+import { BENCH_MODEL, generateBenchAlerts } from "@/lib/bench/generate-alerts";
+import { describeMachine, elapsedMs, formatTable, ms, perSecond, summarize, timed, type BenchRow, type LatencySummary } from "@/lib/bench/support";
+
+const INGEST_BATCH = 10_000;
+const CLAIMERS = 16;
+/** The hold limit's maximum in Settings: each claimer takes this many alerts per phase. */
+const CLAIMS_PER_CLAIMER = 50;
+
+interface Context {
+  url: string;
+  prisma: ReturnType<typeof createDatabaseHandles>["prisma"];
+  pool: pg.Pool;
+  now: Date;
+  scale: number;
+  rows: BenchRow[];
+  results: Record<string, unknown>;
+  log: (line: string) => void;
+}
+
+async function benchIngest(context: Context): Promise<string> {
+  const { prisma, pool, now, scale } = context;
+  const actor = systemActor("bench");
+  const { modelVersion } = await saveModelVersion(prisma, { actor, input: BENCH_MODEL });
+  const alerts = generateBenchAlerts(scale, now);
+
+  context.log(`ingest: ${scale.toLocaleString("en")} alerts through ingestAlerts in batches of ${INGEST_BATCH.toLocaleString("en")}…`);
+  let inserted = 0;
+  const start = process.hrtime.bigint();
+  for (let offset = 0; offset < alerts.length; offset += INGEST_BATCH) {
+    const answer = await ingestAlerts(prisma, { actor, rows: alerts.slice(offset, offset + INGEST_BATCH), channel: "command_line", allowReceivedAt: true, now, rowOffset: offset });
+    inserted += answer.accepted;
+  }
+  const ingestMs = elapsedMs(start);
+  const { rows: countRows } = await pool.query<{ n: string }>("SELECT count(*)::text AS n FROM alerts");
+  if (Number(countRows[0].n) !== scale) throw new AppError("unavailable", `ingest stored ${countRows[0].n} alerts, expected ${scale}`);
+
+  // The same rows, byte for byte as the real path stored them, COPY'd into a scratch table with the
+  // same columns, defaults, checks and indexes (LIKE … INCLUDING ALL; no foreign keys, so COPY has
+  // slightly less to do than the real table would ask of it).
+  context.log("ingest: raw COPY of the same rows into a scratch copy of the alerts table…");
+  const client = await pool.connect();
+  try {
+    await client.query("CREATE TABLE alerts_copy (LIKE alerts INCLUDING ALL)");
+    const chunks: Buffer[] = [];
+    await pipeline(client.query(copyTo("COPY alerts TO STDOUT")), new Writable({ write(chunk: Buffer, _encoding, done) { chunks.push(chunk); done(); } }));
+    const copyStart = process.hrtime.bigint();
+    await pipeline(Readable.from(chunks), client.query(copyFrom("COPY alerts_copy FROM STDIN")));
+    const copyMs = elapsedMs(copyStart);
+    await client.query("DROP TABLE alerts_copy");
+    const ingestRate = scale / (ingestMs / 1000);
+    const copyRate = scale / (copyMs / 1000);
+    const ratio = ingestRate / copyRate;
+    context.results.ingest = { alerts: scale, inserted, batchRows: INGEST_BATCH, ingestSeconds: ingestMs / 1000, ingestAlertsPerSecond: Math.round(ingestRate), copySeconds: copyMs / 1000, copyAlertsPerSecond: Math.round(copyRate), ratio: Number(ratio.toFixed(3)) };
+    context.rows.push(
+      { section: "ingest", measure: "ingestAlerts (real path)", figure: perSecond(ingestRate, "alerts") },
+      { section: "ingest", measure: "raw COPY, same rows and indexes", figure: perSecond(copyRate, "alerts") },
+      { section: "ingest", measure: "real ÷ COPY", figure: `${(ratio * 100).toFixed(0)} %`, target: "≥ 50 %", met: ratio >= 0.5 },
+    );
+  } finally {
+    client.release();
+  }
+  return modelVersion.id;
+}
+
+async function createAnalysts(pool: pg.Pool, count: number): Promise<UserActor[]> {
+  const { rows } = await pool.query<{ id: string; email: string; display_name: string }>(
+    `INSERT INTO users (email, display_name, role)
+     SELECT 'bench-analyst-' || n || '@example.org', 'Bench analyst ' || n, 'analyst' FROM generate_series(1, $1::int) n
+     RETURNING id, email, display_name`,
+    [count],
+  );
+  return rows.map((row) => ({ type: "user", id: row.id, email: row.email, displayName: row.display_name, role: "analyst", sessionId: null }));
+}
+
+async function benchClaiming(context: Context): Promise<void> {
+  const { prisma, pool, now } = context;
+  const analysts = await createAnalysts(pool, CLAIMERS * 2);
+  const settings = await getSettings(prisma);
+  await updateSettings(prisma, { actor: { type: "system", id: null, label: "bench" }, key: "queue", value: { ...settings.queue, maxHeldPerAnalyst: CLAIMS_PER_CLAIMER } });
+  const claimed: string[] = [];
+
+  context.log(`claiming: ${CLAIMERS} concurrent claimers × ${CLAIMS_PER_CLAIMER} claims through claimNextAlert…`);
+  const appLatencies: number[] = [];
+  const appStart = process.hrtime.bigint();
+  await Promise.all(
+    analysts.slice(0, CLAIMERS).map(async (actor) => {
+      for (let index = 0; index < CLAIMS_PER_CLAIMER; index += 1) {
+        const { value, ms: latency } = await timed(() => claimNextAlert(prisma, { actor, now }));
+        appLatencies.push(latency);
+        if (value) claimed.push(value.id);
+      }
+    }),
+  );
+  const appMs = elapsedMs(appStart);
+
+  // The same statement (text of claim-next-alert.ts, same ORDER BY and RETURNING), one per
+  // transaction through pg alone: no lease expiry, overdue sweep, settings, hold limit or audit.
+  const statement = `WITH next AS (
+      SELECT a.id FROM alerts a WHERE a.state = 'waiting' ORDER BY ${QUEUE_ORDER_BY.sql} LIMIT 1 FOR UPDATE SKIP LOCKED)
+    UPDATE alerts a SET state = 'in_review', assigned_to_id = $1::uuid, claimed_at = $2, lease_expires_at = $3
+      FROM next WHERE a.id = next.id
+    RETURNING ${CLAIMED_ALERT_COLUMNS.sql}`;
+  context.log(`claiming: ${CLAIMERS} concurrent claimers × ${CLAIMS_PER_CLAIMER} bare claim statements through pg…`);
+  const bareLatencies: number[] = [];
+  const leaseExpiresAt = new Date(now.getTime() + 30 * 60_000);
+  const bareStart = process.hrtime.bigint();
+  await Promise.all(
+    analysts.slice(CLAIMERS).map(async (actor) => {
+      const client = await pool.connect();
+      try {
+        for (let index = 0; index < CLAIMS_PER_CLAIMER; index += 1) {
+          const { value, ms: latency } = await timed(() => client.query<{ id: string }>(statement, [actor.id, now, leaseExpiresAt]));
+          bareLatencies.push(latency);
+          if (value.rows[0]) claimed.push(value.rows[0].id);
+        }
+      } finally {
+        client.release();
+      }
+    }),
+  );
+  const bareMs = elapsedMs(bareStart);
+
+  const expected = CLAIMERS * CLAIMS_PER_CLAIMER * 2;
+  const distinct = new Set(claimed).size;
+  const { rows } = await pool.query<{ n: string }>("SELECT count(*)::text AS n FROM alerts WHERE state = 'in_review'");
+  const inReview = Number(rows[0].n);
+  const pass = claimed.length === expected && distinct === claimed.length && inReview === claimed.length;
+  const app = summarize(appLatencies);
+  const bare = summarize(bareLatencies);
+  const appRate = appLatencies.length / (appMs / 1000);
+  const bareRate = bareLatencies.length / (bareMs / 1000);
+  context.results.claiming = { claimers: CLAIMERS, claimsPerClaimer: CLAIMS_PER_CLAIMER, takeNext: { ...app, claimsPerSecond: Math.round(appRate) }, bareStatement: { ...bare, claimsPerSecond: Math.round(bareRate) }, claimed: claimed.length, distinct, inReview, doubleClaims: claimed.length - distinct, pass };
+  const latencyFigure = (summary: LatencySummary) => `p50 ${ms(summary.p50Ms)} · p95 ${ms(summary.p95Ms)} · p99 ${ms(summary.p99Ms)}`;
+  context.rows.push(
+    { section: "claiming", measure: `take next (claimNextAlert), ${CLAIMERS} claimers`, figure: latencyFigure(app), target: "p95 < 10 ms", met: app.p95Ms < 10 },
+    { section: "claiming", measure: "bare claim statement (pg)", figure: latencyFigure(bare) },
+    { section: "claiming", measure: "take next p95 ÷ bare p95", figure: `${(app.p95Ms / bare.p95Ms).toFixed(1)}×`, target: "≤ 2×", met: app.p95Ms <= 2 * bare.p95Ms },
+    { section: "claiming", measure: "claims per second (take next / bare)", figure: `${Math.round(appRate).toLocaleString("en")} / ${Math.round(bareRate).toLocaleString("en")}` },
+    { section: "claiming", measure: "double claims", figure: `${claimed.length - distinct} of ${claimed.length} (in_review ${inReview}) ${pass ? "PASS" : "FAIL"}`, target: "0", met: pass },
+  );
+}
+
+async function benchCalibrationFit(context: Context): Promise<void> {
+  const labels = 1_000_000;
+  const random = seededRandom(7);
+  const points = new Array<{ score: number; label: 0 | 1 }>(labels);
+  for (let index = 0; index < labels; index += 1) {
+    const score = random.next();
+    points[index] = { score: Number(score.toFixed(4)), label: random.chance(score * score) ? 1 : 0 };
+  }
+  context.log("calibration: fitIsotonicCalibration on 1,000,000 labels…");
+  fitIsotonicCalibration(points.slice(0, 10_000));
+  const latencies: number[] = [];
+  let knots = 0;
+  for (let run = 0; run < 3; run += 1) {
+    const start = process.hrtime.bigint();
+    const map = fitIsotonicCalibration(points);
+    latencies.push(elapsedMs(start));
+    knots = map.scores.length;
+  }
+  const summary = summarize(latencies);
+  context.results.calibrationFit = { labels, knots, ...summary };
+  context.rows.push({ section: "calibration", measure: "fitIsotonicCalibration, 1,000,000 labels (p50 of 3)", figure: ms(summary.p50Ms), target: "< 1 s", met: summary.p50Ms < 1000 });
+}
+
+await runCommand(async () => {
+  const { options } = parseArguments(process.argv.slice(2));
+  const scale = options.scale === undefined ? 100_000 : Number(options.scale);
+  if (!Number.isInteger(scale) || scale < 2_000) throw new AppError("invalid_input", `--scale must be a whole number of at least 2000, got "${String(options.scale)}"`);
+  const log = (line: string) => console.log(line);
+  const machine = describeMachine();
+  const startedAt = new Date();
+
+  const folder = await mkdtemp(path.join(os.tmpdir(), "triage-desk-bench-"));
+  await chmod(folder, 0o755);
+  log(`bench: scale ${scale.toLocaleString("en")} alerts; embedded PostgreSQL (durable) in ${folder}`);
+  const server = await ensureLocalServer({ dataDir: path.join(folder, "pg"), durable: true });
+  const rows: BenchRow[] = [];
+  const results: Record<string, unknown> = {};
+  try {
+    await createDatabaseIfMissing(server.urlFor("postgres"), "triage_bench");
+    const url = server.urlFor("triage_bench");
+    const admin = new pg.Client({ connectionString: url });
+    await admin.connect();
+    try {
+      await applyPendingMigrations(admin);
+      machine.postgres = (await admin.query<{ server_version: string }>("SHOW server_version")).rows[0].server_version;
+    } finally {
+      await admin.end();
+    }
+    const { prisma, pool } = createDatabaseHandles(url, CLAIMERS * 2 + 4);
+    const context: Context = { url, prisma, pool, now: new Date(Date.UTC(2026, 5, 1, 12)), scale, rows, results, log };
+    try {
+      await benchIngest(context);
+      await pool.query("ANALYZE");
+      await benchClaiming(context);
+      await benchCalibrationFit(context);
+    } finally {
+      await prisma.$disconnect();
+      await pool.end();
+    }
+  } finally {
+    await server.stop();
+    await rm(folder, { recursive: true, force: true });
+  }
+
+  machine.loadAverageEnd = os.loadavg().map((value) => Number(value.toFixed(2)));
+  const finishedAt = new Date();
+  const loaded = machine.loadAverageStart[0] > machine.cpuCount || (machine.loadAverageEnd[0] ?? 0) > machine.cpuCount;
+  console.log("");
+  console.log(`Triage Desk benchmark — ${scale.toLocaleString("en")} alerts, ${finishedAt.toISOString()}`);
+  console.log(`Machine: ${machine.cpuCount} × ${machine.cpuModel}, ${machine.totalMemoryGiB} GiB, ${machine.platform}, Node ${machine.node}, PostgreSQL ${machine.postgres}`);
+  console.log(`Load average (1/5/15 min): start ${machine.loadAverageStart.join(" / ")}, end ${machine.loadAverageEnd.join(" / ")}`);
+  if (loaded) console.log(`Note: the machine was busy with other work (load above its ${machine.cpuCount} CPUs), so these figures are pessimistic.`);
+  if (scale !== 1_000_000) console.log(`Note: targets are stated for 1,000,000 alerts; this run used ${scale.toLocaleString("en")}.`);
+  console.log("");
+  console.log(formatTable(rows));
+
+  const report = { startedAt: startedAt.toISOString(), finishedAt: finishedAt.toISOString(), scale, machine, busyMachine: loaded, results, table: rows };
+  const outDir = path.resolve(process.cwd(), ".bench");
+  await mkdir(outDir, { recursive: true });
+  const json = `${JSON.stringify(report, null, 2)}\n`;
+  const stamp = finishedAt.toISOString().replaceAll(":", "-").replace(/\.\d+Z$/, "Z");
+  await writeFile(path.join(outDir, "latest.json"), json);
+  await writeFile(path.join(outDir, `bench-${stamp}-scale-${scale}.json`), json);
+  console.log("");
+  console.log(`Written: .bench/latest.json and .bench/bench-${stamp}-scale-${scale}.json`);
+  return results.claiming && (results.claiming as { pass: boolean }).pass ? 0 : 1;
+});
