@@ -41,6 +41,7 @@ export const apiRouteAccess = {
 export type ApiRouteKey = keyof typeof apiRouteAccess;
 
 export const serverActionAccess = {
+  "app/(desk)/settings/model-version-actions.ts#saveModelVersionAction": "model_versions.manage",
   "app/sign-in/actions.ts#signInAction": "public",
   "app/sign-out/actions.ts#signOutAction": "public",
   "app/(desk)/account/actions.ts#changeOwnPasswordAction": "account.manage_own",

@@ -24,3 +24,36 @@ export type ModelVersionView = z.infer<typeof modelVersionViewSchema>;
 
 /** Fields an admin may edit; everything else identifies the version. */
 export const MODEL_VERSION_EDITABLE_FIELDS = ["scoreKind", "negativeSamplingRate", "priorHitRate", "alertThreshold", "active"] as const;
+
+/** The Settings screen's model-version form: every field arrives as text (checkbox "on" when ticked). */
+export const modelVersionFormSchema = z.object({
+  modelName: z.string().default(""),
+  version: z.string().default(""),
+  scoreKind: z.string().default(""),
+  negativeSamplingRate: z.string().default(""),
+  priorHitRate: z.string().default(""),
+  alertThreshold: z.string().default(""),
+  active: z.string().optional(),
+});
+export type ModelVersionForm = z.infer<typeof modelVersionFormSchema>;
+
+/** A number when the text is plainly one; otherwise the text itself, so validation names the field. */
+function formNumber(text: string): number | string | undefined {
+  const trimmed = text.trim();
+  if (trimmed === "") return undefined;
+  const value = Number(trimmed);
+  return Number.isFinite(value) ? value : trimmed;
+}
+
+/** The form's text as the input saveModelVersion validates: empty β means 1, empty prior means none. */
+export function modelVersionInputFromForm(form: ModelVersionForm): Record<string, unknown> {
+  return {
+    modelName: form.modelName.trim(),
+    version: form.version.trim(),
+    scoreKind: form.scoreKind,
+    negativeSamplingRate: formNumber(form.negativeSamplingRate),
+    priorHitRate: formNumber(form.priorHitRate) ?? null,
+    alertThreshold: formNumber(form.alertThreshold),
+    active: form.active === "on",
+  };
+}

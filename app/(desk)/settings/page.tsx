@@ -8,6 +8,7 @@ import { listModelVersions } from "@/lib/model-versions/list-model-versions";
 import { NotAllowed } from "@/app/components/not-allowed";
 import { formatUtc } from "@/app/components/format";
 import { CalibrationSettingsForm, CostSettingsForm, QueueSettingsForm, RefitButton } from "@/app/(desk)/settings/settings-forms";
+import { ModelVersionForm } from "@/app/(desk)/settings/model-version-form";
 
 export const metadata: Metadata = { title: "Settings" };
 export const dynamic = "force-dynamic";
@@ -121,6 +122,7 @@ export default async function SettingsPage() {
             </table>
           </div>
         )}
+        {can(role, "model_versions.manage") && <ModelVersionForm />}
       </section>
     </section>
   );
