@@ -25,8 +25,17 @@ import { QUEUE_ORDER_BY } from "@/lib/queue/list-waiting-alerts";
 import { CLAIMED_ALERT_COLUMNS } from "@/lib/queue/claimed-alert-columns";
 import { fitIsotonicCalibration } from "@/lib/risk";
 import { seededRandom } from "@/demo-data/random";
+import { findWaitingAlerts } from "@/lib/queue/find-waiting-alerts";
+import { getAlertDetail } from "@/lib/alerts/get-alert-detail";
+import { getModelVersionMetrics } from "@/lib/feedback/get-model-version-metrics";
+import { getReviewerMetrics } from "@/lib/feedback/get-reviewer-metrics";
+import { modelVersionMetricsQuerySchema, windowQuerySchema } from "@/lib/feedback/schemas";
+import { getWorkload } from "@/lib/workload/get-workload";
+import { planCapacity } from "@/lib/workload/plan-capacity";
+import { capacityQuerySchema } from "@/lib/workload/schemas";
 import { BENCH_MODEL, generateBenchAlerts } from "@/lib/bench/generate-alerts";
-import { describeMachine, elapsedMs, formatTable, ms, perSecond, summarize, timed, type BenchRow, type LatencySummary } from "@/lib/bench/support";
+import { spawnSync } from "node:child_process";
+import { describeMachine, elapsedMs, formatTable, ms, perSecond, repeat, summarize, timed, type BenchRow, type LatencySummary } from "@/lib/bench/support";
 
 const INGEST_BATCH = 10_000;
 const CLAIMERS = 16;
@@ -167,6 +176,132 @@ async function benchClaiming(context: Context): Promise<void> {
   );
 }
 
+const READ_RUNS = 20;
+/** Share of the alerts still waiting that are closed with outcomes before the read queries run. */
+const CLOSED_SHARE = 0.8;
+
+/**
+ * Closes CLOSED_SHARE of the waiting alerts set-based, the way a team's history looks: a first-review
+ * outcome by one of the analysts (fraud with the alert's probability), closed within a day of
+ * arrival, and a chargeback for one in twelve of them.
+ */
+async function closeHistory(context: Context, reviewerIds: string[]): Promise<number> {
+  const { pool, now } = context;
+  const threshold = Math.round(CLOSED_SHARE * 1000);
+  const client = await pool.connect();
+  try {
+    await client.query("BEGIN");
+    const { rowCount } = await client.query(
+      `UPDATE alerts a
+          SET state = 'closed', assigned_to_id = ($1::uuid[])[1 + abs(hashtext(a.external_id || 'r')) % cardinality($1::uuid[])],
+              claimed_at = c.closed_at - make_interval(secs => 60 + abs(hashtext(a.external_id || 'h')) % 900),
+              closed_at = c.closed_at,
+              final_outcome = CASE WHEN (abs(hashtext(a.external_id || 'o')) % 10000) / 10000.0 < coalesce(a.probability, 0.1) THEN 'confirmed_fraud'
+                                   WHEN abs(hashtext(a.external_id || 'i')) % 40 = 0 THEN 'inconclusive' ELSE 'legitimate' END,
+              lease_expires_at = NULL
+         FROM (SELECT id, least(received_at + make_interval(mins => 5 + abs(hashtext(external_id || 'c')) % 1440), $2::timestamptz) AS closed_at
+                 FROM alerts WHERE state = 'waiting' AND abs(hashtext(external_id)) % 1000 < $3) c
+        WHERE a.id = c.id`,
+      [reviewerIds, now, threshold],
+    );
+    await client.query(
+      `INSERT INTO outcomes (alert_id, review_round, outcome, reason, reviewer_id, claimed_at, closed_at, handling_seconds, origin)
+       SELECT id, 1, final_outcome, 'Benchmark history', assigned_to_id, claimed_at, closed_at, extract(epoch FROM closed_at - claimed_at)::int, 'imported'
+         FROM alerts WHERE state = 'closed'`,
+    );
+    await client.query(
+      `INSERT INTO labels (alert_external_id, alert_id, label, source, observed_at, received_at, reference)
+       SELECT external_id, id, CASE WHEN final_outcome = 'legitimate' THEN 'genuine' ELSE 'fraud' END, 'chargeback',
+              occurred_at + interval '5 days', occurred_at + interval '7 days', 'CB-' || external_id
+         FROM alerts WHERE state = 'closed' AND abs(hashtext(external_id || 'l')) % 12 = 0 AND occurred_at + interval '7 days' <= $1`,
+      [now],
+    );
+    await client.query("COMMIT");
+    return rowCount ?? 0;
+  } catch (error) {
+    await client.query("ROLLBACK");
+    throw error;
+  } finally {
+    client.release();
+  }
+}
+
+async function benchReads(context: Context, modelVersionId: string): Promise<void> {
+  const { prisma, pool, now } = context;
+  const { rows: reviewers } = await pool.query<{ id: string }>("SELECT id FROM users WHERE role = 'analyst' ORDER BY email");
+  context.log(`reads: closing ${CLOSED_SHARE * 100} % of the waiting alerts with outcomes (set-based SQL)…`);
+  const { value: closed, ms: closeMs } = await timed(() => closeHistory(context, reviewers.map((row) => row.id)));
+  await pool.query("VACUUM ANALYZE alerts");
+  await pool.query("ANALYZE");
+  const { rows: counts } = await pool.query<{ state: string; n: string }>("SELECT state, count(*)::text AS n FROM alerts GROUP BY state ORDER BY state");
+  const stateCounts = Object.fromEntries(counts.map((row) => [row.state, Number(row.n)]));
+  const { rows: sample } = await pool.query<{ id: string }>("SELECT id FROM alerts ORDER BY md5(id::text) LIMIT $1", [READ_RUNS + 1]);
+
+  const day = (date: Date) => date.toISOString().slice(0, 10);
+  const window = windowQuerySchema.parse({ window: "custom", from: day(new Date(now.getTime() - 30 * 86_400_000)), to: day(now) });
+  const metricsQuery = { ...window, ...modelVersionMetricsQuerySchema.parse({}) };
+  const capacityQuery = capacityQuerySchema.parse({ analysts: "12", hours: "7.5" });
+  let detailIndex = 0;
+  const measures: { measure: string; target: number; work: () => Promise<unknown> }[] = [
+    { measure: "queue page data (findWaitingAlerts, first page)", target: 100, work: () => findWaitingAlerts(prisma, { now }) },
+    { measure: "queue page data, filtered (channel, amount ≥ 100.00)", target: 100, work: () => findWaitingAlerts(prisma, { now, filter: { channel: "card_not_present", amountMinMinor: 10_000 } }) },
+    { measure: "alert page data (getAlertDetail)", target: 100, work: () => getAlertDetail(prisma, { alertId: sample[detailIndex++ % sample.length].id, now }) },
+    { measure: "model-version metrics (getModelVersionMetrics, 30 days)", target: 300, work: () => getModelVersionMetrics(prisma, { query: { ...metricsQuery, modelVersionId: [modelVersionId] }, now }) },
+    { measure: "reviewer metrics (getReviewerMetrics, 30 days)", target: 300, work: () => getReviewerMetrics(prisma, { query: window, now }) },
+    { measure: "workload (getWorkload)", target: 300, work: () => getWorkload(prisma, { now }) },
+    { measure: "capacity plan (planCapacity)", target: 300, work: () => planCapacity(prisma, { query: capacityQuery, now }) },
+  ];
+  const summaries: Record<string, LatencySummary> = {};
+  for (const { measure, target, work } of measures) {
+    context.log(`reads: ${measure} × ${READ_RUNS}…`);
+    const summary = summarize(await repeat(READ_RUNS, work));
+    summaries[measure] = summary;
+    context.rows.push({ section: "reads", measure, figure: `p50 ${ms(summary.p50Ms)} · p95 ${ms(summary.p95Ms)}`, target: `p95 < ${target} ms`, met: summary.p95Ms < target });
+  }
+  context.results.reads = { closedBySql: closed, closeSeconds: closeMs / 1000, stateCounts, runsEach: READ_RUNS, latencies: summaries };
+}
+
+const EXPORT_ROWS = 1_000_000;
+
+async function benchExport(context: Context, folder: string): Promise<void> {
+  const { pool, now, scale } = context;
+  const { rows: people } = await pool.query<{ id: string }>(
+    "INSERT INTO users (email, display_name, role) VALUES ('bench-supervisor@example.org', 'Bench supervisor', 'supervisor') RETURNING id",
+  );
+  // Alerts arrive evenly over the 30 days before now: above a million, export the latest million or so.
+  const spanDays = 30 * Math.min(1, EXPORT_ROWS / scale);
+  const { rows: versions } = await pool.query<{ id: string }>("SELECT id FROM model_versions");
+  const choices = {
+    modelVersionIds: versions.map((row) => row.id),
+    occurredFrom: new Date(now.getTime() - spanDays * 86_400_000 - 3_600_000).toISOString(),
+    occurredTo: now.toISOString(),
+    asOf: now.toISOString(),
+    maturityDays: 0,
+    keepInconclusive: true,
+    keepUnreviewed: true,
+    includeBelowTheLine: true,
+    format: "csv",
+  };
+  context.log(`export: label export (csv) of up to ${Math.min(scale, EXPORT_ROWS).toLocaleString("en")} rows in a child process…`);
+  const script = path.resolve(process.cwd(), "lib", "bench", "export-child.ts");
+  const child = spawnSync(process.execPath, [...process.execArgv, script, context.url, JSON.stringify(choices), people[0].id, path.join(folder, "exports"), now.toISOString()], {
+    encoding: "utf8",
+    maxBuffer: 16 * 2 ** 20,
+  });
+  const line = child.stdout.trim().split("\n").pop() ?? "";
+  if (child.status !== 0 || !line.startsWith("{")) {
+    throw new AppError("unavailable", `the export child failed (exit ${child.status}): ${child.stderr.trim().split("\n").slice(-3).join(" | ")}`);
+  }
+  const result = JSON.parse(line) as { status: string; error: string | null; rows: number; seconds: number; fileBytes: number; baselineRssMiB: number; peakRssMiB: number };
+  if (result.status !== "done") throw new AppError("unavailable", `the label export failed: ${result.error}`);
+  context.results.export = { format: "csv", requestedRows: Math.min(scale, EXPORT_ROWS), ...result };
+  const smaller = result.rows < EXPORT_ROWS ? ` (${result.rows.toLocaleString("en")} rows: the scale's, not 1,000,000)` : "";
+  context.rows.push(
+    { section: "export", measure: `label export, csv${smaller}`, figure: `${result.seconds.toFixed(1)} s, ${perSecond(result.rows / result.seconds, "rows")}`, target: "< 20 s", met: result.seconds < 20 },
+    { section: "export", measure: "label export peak RSS (baseline before export)", figure: `${Math.round(result.peakRssMiB)} MiB (${Math.round(result.baselineRssMiB)} MiB)`, target: "< 300 MB", met: result.peakRssMiB * 1.048576 < 300 },
+  );
+}
+
 async function benchCalibrationFit(context: Context): Promise<void> {
   const labels = 1_000_000;
   const random = seededRandom(7);
@@ -218,10 +353,12 @@ await runCommand(async () => {
     const { prisma, pool } = createDatabaseHandles(url, CLAIMERS * 2 + 4);
     const context: Context = { url, prisma, pool, now: new Date(Date.UTC(2026, 5, 1, 12)), scale, rows, results, log };
     try {
-      await benchIngest(context);
+      const modelVersionId = await benchIngest(context);
       await pool.query("ANALYZE");
       await benchClaiming(context);
+      await benchReads(context, modelVersionId);
       await benchCalibrationFit(context);
+      await benchExport(context, folder);
     } finally {
       await prisma.$disconnect();
       await pool.end();
