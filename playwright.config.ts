@@ -43,7 +43,7 @@ export default defineConfig({
     command: "npx tsx --conditions=react-server e2e/support/serve-demo.ts",
     url: `http://127.0.0.1:${port}/sign-in`,
     env: { E2E_PORT: String(port) },
-    timeout: 240_000,
+    timeout: 600_000,
     reuseExistingServer: false,
     stdout: "pipe",
     stderr: "pipe",

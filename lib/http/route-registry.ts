@@ -64,11 +64,6 @@ export const serverActionAccess = {
   "app/(desk)/settings/actions.ts#saveCostSettingsAction": "settings.costs.edit",
   "app/(desk)/settings/actions.ts#saveCalibrationSettingsAction": "calibration.refit",
   "app/(desk)/settings/actions.ts#refitCalibrationAction": "calibration.refit",
-  // Settings: queue (supervisors, admins), costs (admins), calibration minimums and refits (supervisors, admins).
-  "app/(desk)/settings/actions.ts#saveQueueSettingsAction": "settings.queue.edit",
-  "app/(desk)/settings/actions.ts#saveCostSettingsAction": "settings.costs.edit",
-  "app/(desk)/settings/actions.ts#saveCalibrationSettingsAction": "calibration.refit",
-  "app/(desk)/settings/actions.ts#refitCalibrationAction": "calibration.refit",
 } as const satisfies Record<string, ServerActionAccess>;
 
 export type ServerActionKey = keyof typeof serverActionAccess;
