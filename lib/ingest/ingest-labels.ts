@@ -16,7 +16,7 @@ import "server-only";
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
 import { auditActorOf } from "@/lib/auth/actor";
-import { recordAuditEvent } from "@/lib/audit/record-audit-event";
+import { recordAuditEvents } from "@/lib/audit/record-audit-event";
 import { labelRowSchema, type LabelRow } from "@/lib/ingest/schemas";
 import { validateRows } from "@/lib/ingest/validate-rows";
 import {
@@ -104,14 +104,16 @@ export async function ingestLabels(db: DbOrTx, options: IngestLabelsOptions): Pr
     }
 
     const actor = auditActorOf(options.actor);
-    for (const label of inserted) {
-      await recordAuditEvent(tx, {
+    // One event per label (each chargeback is evidence on its own), appended as one batch.
+    await recordAuditEvents(
+      tx,
+      inserted.map((label) => ({
         actor,
-        event: { action: "label.received", payload: { externalId: label.externalId, label: label.label, source: label.source, matched: label.alertId !== null } },
+        event: { action: "label.received" as const, payload: { externalId: label.externalId, label: label.label, source: label.source, matched: label.alertId !== null } },
         subject: label.alertId !== null ? { type: "alert", id: label.alertId } : { type: "label", id: label.id },
         context: options.context,
-      });
-    }
+      })),
+    );
 
     const conflict = conflicts.rowCount;
     const counts = rolledBack
