@@ -32,6 +32,15 @@ import { groundTruthExpression, latestExternalLabels } from "@/lib/feedback/grou
 import { bucketsOf, DAY_MS, resolveMetricsWindow, windowJson, type Bucket, type MetricsWindow } from "@/lib/feedback/metrics-window";
 import type { ModelVersionMetrics, ModelVersionMetricsAnswer, ModelVersionMetricsQuery, WindowQuery } from "@/lib/feedback/schemas";
 
+/**
+ * A bucket of the drift series gets its own PSI only with at least this many scores. Two samples of
+ * the same distribution still give PSI ≈ (bins − 1)·(1/n + 1/m) on average (PSI is the symmetric
+ * Kullback–Leibler divergence, whose sampling distribution is close to a scaled χ² with bins − 1
+ * degrees of freedom; from memory): 9/85 ≈ 0.11 for a day of 85 alerts, past the watch line with no
+ * drift at all. From 500 scores the noise stays under about 0.02. Our rule, not a published one.
+ */
+export const MIN_SCORES_FOR_PSI_BUCKET = 500;
+
 /** Score list length one model version sends back for AUC/AP, and per drift window for PSI, before sampling. */
 export const SCORE_SAMPLE_CAP = 20_000;
 
@@ -170,7 +179,7 @@ export async function getModelVersionMetrics(db: DbOrTx, options: GetModelVersio
   const driftReferenceFrom = new Date(driftCurrentFrom.getTime() - query.driftReferenceDays * DAY_MS);
   const seriesBuckets = bucketsOf(window, window.bucket);
   const days = bucketsOf(window, "day");
-  const driftDays = bucketsOf({ from: driftCurrentFrom, to: window.to, matureBefore: window.matureBefore }, "day");
+  const driftSpan = { from: driftCurrentFrom, to: window.to, matureBefore: window.matureBefore };
 
   const truth = groundTruthExpression(Prisma.sql`a.final_outcome`, Prisma.sql`ext.label`);
   // width_bucket counts the thresholds ≤ its operand; on negated edges that is the count of edges ≥ p,
@@ -269,7 +278,7 @@ export async function getModelVersionMetrics(db: DbOrTx, options: GetModelVersio
   ]);
   const { summaries, series, bins, scoreLists, topK } = aggregateRows[0];
   // Score lists arrive sorted (AUC/AP lists by score descending, drift lists ascending): lib/metrics
-  // sorts its own copy, and a sorted input makes that sort linear, which matters for the daily PSI.
+  // sorts its own copy, and a sorted input makes that sort linear, which matters for the PSI of each bucket.
   const startOf = (text: string) => new Date(text).getTime();
 
   const modelVersions: ModelVersionMetrics[] = versions.map((version) => {
@@ -310,14 +319,17 @@ export async function getModelVersionMetrics(db: DbOrTx, options: GetModelVersio
     const reference = driftRows.find((row) => !row.current);
     const current = driftRows.find((row) => row.current);
     const stability = reference && current ? populationStabilityIndex(reference.scores, current.scores) : null;
-    const scoresByDay = driftDays.map(() => [] as number[]);
-    current?.scores.forEach((score, i) => scoresByDay[current.days[i]]?.push(score));
-    const daily = driftDays.map((day, index) => {
-      const dayScores = scoresByDay[index];
+    // Days when a typical day has enough scores for its own PSI, otherwise weeks.
+    const driftStep = (current?.scores.length ?? 0) >= MIN_SCORES_FOR_PSI_BUCKET * query.driftCurrentDays ? "day" : "week";
+    const driftBuckets = bucketsOf(driftSpan, driftStep);
+    const scoresByBucket = driftBuckets.map(() => [] as number[]);
+    current?.scores.forEach((score, i) => scoresByBucket[Math.floor(current.days[i] / (driftStep === "day" ? 1 : 7))]?.push(score));
+    const driftSeries = driftBuckets.map((bucket, index) => {
+      const bucketScores = scoresByBucket[index];
       return {
-        ...bucketJson(day),
-        scores: dayScores.length,
-        psi: reference && dayScores.length > 0 ? populationStabilityIndex(reference.scores, dayScores).psi : null,
+        ...bucketJson(bucket),
+        scores: bucketScores.length,
+        psi: reference && bucketScores.length >= MIN_SCORES_FOR_PSI_BUCKET ? populationStabilityIndex(reference.scores, bucketScores).psi : null,
       };
     });
 
@@ -377,7 +389,8 @@ export async function getModelVersionMetrics(db: DbOrTx, options: GetModelVersio
         watchLine: PSI_WATCH,
         actLine: PSI_ACT,
         bins: (stability?.bins ?? []).map((bin) => ({ ...bin, lower: finiteOrNull(bin.lower), upper: finiteOrNull(bin.upper) })),
-        daily,
+        step: driftStep,
+        series: driftSeries,
       },
       precisionAtK: { k, overall: rate(pooledFraud, pooledConsidered), days: topKDays },
       belowTheLine: {

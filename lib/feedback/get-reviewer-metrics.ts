@@ -19,6 +19,8 @@ import { latestExternalLabels } from "@/lib/feedback/ground-truth-sql";
 import { resolveMetricsWindow, windowJson } from "@/lib/feedback/metrics-window";
 import type { ReviewerMetrics, ReviewerMetricsAnswer, ReviewerNumbers, WindowQuery } from "@/lib/feedback/schemas";
 
+type OutcomeName = (typeof OUTCOME_CATEGORIES)[number];
+
 export interface GetReviewerMetricsOptions {
   query: WindowQuery;
   now: Date;
@@ -45,8 +47,8 @@ interface FirstReviewRow {
 
 interface PairRow {
   reviewerId: string | null;
-  first: string;
-  second: string;
+  first: OutcomeName;
+  second: OutcomeName;
   n: number;
 }
 
@@ -76,7 +78,13 @@ function numbersOf(row: FirstReviewRow | undefined, pairs: PairRow[], secondRevi
     },
     falseClearRate: falseClearRate({ falseClears: row?.falseClears ?? 0, clearedLegitimate: legitimate }),
     medianHandlingSeconds: row?.medianHandlingSeconds ?? null,
-    agreement: { kappa: cohenKappa(expanded, OUTCOME_CATEGORIES), agreementRate: rate(agreements, expanded.length) },
+    agreement: {
+      kappa: cohenKappa(expanded, OUTCOME_CATEGORIES),
+      agreementRate: rate(agreements, expanded.length),
+      pairs: pairs
+        .map(({ first, second, n }) => ({ first, second, n }))
+        .sort((a, b) => OUTCOME_CATEGORIES.indexOf(a.first) - OUTCOME_CATEGORIES.indexOf(b.first) || OUTCOME_CATEGORIES.indexOf(a.second) - OUTCOME_CATEGORIES.indexOf(b.second)),
+    },
     secondReviews,
   };
 }

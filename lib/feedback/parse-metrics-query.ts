@@ -62,6 +62,17 @@ export function parseModelVersionMetricsQuery(input: SearchParamsInput): WindowQ
   return { ...window, ...rest };
 }
 
+/**
+ * A screen's filter form sends every field, filled or not: keep only the ones that go with the
+ * chosen window (date for a day or week, from and to for a custom range) so that switching the
+ * window does not turn into an error about the fields left behind. The API stays strict.
+ */
+export function formWindowInput(input: Record<string, string | string[] | undefined>): Record<string, string | string[] | undefined> {
+  const chosen = Array.isArray(input.window) ? input.window[0] : input.window;
+  const { date, from, to, ...rest } = input;
+  return chosen === "day" || chosen === "week" ? { ...rest, date } : { ...rest, from, to };
+}
+
 /** The window part of a query string, in a fixed order, for links that keep the reader's window. */
 export function windowQueryEntries(query: WindowQuery): [string, string][] {
   const entries: [string, string][] = [];

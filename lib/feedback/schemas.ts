@@ -89,6 +89,8 @@ export const metricsWindowSchema = z.object({
 });
 export type MetricsWindowJson = z.infer<typeof metricsWindowSchema>;
 
+export const outcomeNameSchema = z.enum(["confirmed_fraud", "legitimate", "inconclusive"]);
+
 export const outcomeMixSchema = z.object({
   confirmedFraud: z.number().int(),
   legitimate: z.number().int(),
@@ -125,6 +127,7 @@ export const reliabilityBinSchema = z.object({
 
 export const driftPointSchema = seriesPointBase.extend({
   scores: z.number().int(),
+  /** Null without a reference window, or with fewer than 500 scores in the bucket (PSI's own noise would be past 0.02). */
   psi: z.number().nullable(),
 });
 
@@ -192,7 +195,9 @@ export const modelVersionMetricsSchema = z.object({
     watchLine: z.number(),
     actLine: z.number(),
     bins: z.array(psiBinSchema),
-    daily: z.array(driftPointSchema),
+    /** Days of the current window when an average day has 500 scores or more, otherwise 7-day blocks. */
+    step: z.enum(["day", "week"]),
+    series: z.array(driftPointSchema),
   }),
   precisionAtK: z.object({
     k: z.number().int(),
@@ -248,6 +253,12 @@ export const reviewerNumbersSchema = z.object({
     kappa: z.number().nullable(),
     /** Share of double-reviewed alerts where both outcomes matched. */
     agreementRate: rateSchema,
+    /**
+     * The pairs behind both: how often each (first, second) outcome occurred. When every first
+     * outcome is the same (the four-eyes rule sends only `legitimate` ones to a second person),
+     * chance agreement equals observed agreement and kappa is 0 by construction.
+     */
+    pairs: z.array(z.object({ first: outcomeNameSchema, second: outcomeNameSchema, n: z.number().int() })),
   }),
   /** Second reviews done in the window on other people's alerts. */
   secondReviews: z.number().int(),

@@ -307,10 +307,10 @@ describe("model health over the week of 2026-07-06", () => {
     const expected = populationStabilityIndex([0.2, 0.5, 0.7, 0.9], current);
     expect(champ.drift.psi).toBeCloseTo(expected.psi, 12);
     expect(champ.drift).toMatchObject({ level: expected.level, watchLine: 0.1, actLine: 0.25 });
-    // Daily: day 1 holds a01–a06, day 2 a07–a12, the other days nothing (no PSI).
-    expect(champ.drift.daily.map((day) => day.scores)).toEqual([6, 6, 0, 0, 0, 0, 0]);
-    expect(champ.drift.daily[0].psi).toBeCloseTo(populationStabilityIndex([0.2, 0.5, 0.7, 0.9], current.slice(0, 6)).psi, 12);
-    expect(champ.drift.daily[2].psi).toBeNull();
+    // Twelve scores in seven days are far from 500 a day, so the series steps by week: one bucket of
+    // 12 scores, too few for a PSI of its own (500 are needed); the whole-window PSI above stands.
+    expect(champ.drift.step).toBe("week");
+    expect(champ.drift.series).toEqual([{ from: "2026-07-06T00:00:00.000Z", to: "2026-07-13T00:00:00.000Z", mature: true, scores: 12, psi: null }]);
     // The challenger has no alerts before 07-06: no reference, no PSI.
     expect(chall.drift).toMatchObject({ psi: null, level: null, bins: [] });
   });
@@ -453,11 +453,15 @@ describe("reviewer quality over the week of 2026-07-06", () => {
     const [a, b] = reviewers;
     // A as first reviewer: one pair, a08 (legitimate, legitimate). p_o = 1 and p_e = 1·1 = 1: kappa is
     // 0/0, undefined → null; agreement 1/1.
-    expect(a.agreement).toEqual({ kappa: null, agreementRate: rate(1, 1) });
+    expect(a.agreement).toEqual({ kappa: null, agreementRate: rate(1, 1), pairs: [{ first: "legitimate", second: "legitimate", n: 1 }] });
     // B: a09 (F, F), b02 (L, F), b06 (F, F). p_o = 2/3. First marginals F 2/3, L 1/3; second F 3/3.
     // p_e = 2/3·1 + 1/3·0 = 2/3 → kappa = (2/3 − 2/3) / (1/3) = 0.
     expect(b.agreement.kappa).toBeCloseTo(0, 12);
     expect(b.agreement.agreementRate).toEqual(rate(2, 3));
+    expect(b.agreement.pairs).toEqual([
+      { first: "confirmed_fraud", second: "confirmed_fraud", n: 2 },
+      { first: "legitimate", second: "confirmed_fraud", n: 1 },
+    ]);
     // Team: the four pairs; p_o = 3/4; first F 2/4, L 2/4; second F 3/4, L 1/4;
     // p_e = .5·.75 + .5·.25 = .5 → kappa = (.75 − .5) / .5 = 0.5.
     expect(team.agreement.kappa).toBeCloseTo(0.5, 12);

@@ -2,7 +2,7 @@
 // ties, probabilities on bin edges, open and inconclusive alerts and labels that overturn analysts.
 import { beforeAll, describe, expect, it } from "vitest";
 import { useTestDatabase } from "@/tests/support/test-database";
-import { averagePrecision, brierScore, expectedCalibrationError, realizedPrecision, reliabilityTable, rocAuc } from "@/lib/metrics";
+import { averagePrecision, brierScore, expectedCalibrationError, populationStabilityIndex, realizedPrecision, reliabilityTable, rocAuc } from "@/lib/metrics";
 import { getModelVersionMetrics } from "@/lib/feedback/get-model-version-metrics";
 import { parseModelVersionMetricsQuery } from "@/lib/feedback/parse-metrics-query";
 import { seededRandom } from "@/tests/risk/seeded-random";
@@ -38,6 +38,15 @@ function truthOf(alert: Synthetic): number | null {
   return null;
 }
 
+// A second model version whose scores move: 600 on 07-04 (the reference), 600 higher ones on 07-05,
+// and 499 on 07-06 — one too few for a day's own PSI. 1,099 scores in two days are enough for daily steps.
+const drifting = {
+  reference: Array.from({ length: 600 }, () => random()),
+  shifted: Array.from({ length: 600 }, () => Math.sqrt(random())),
+  short: Array.from({ length: 499 }, () => random()),
+};
+let driftingVersionId = "";
+
 const closedWithTruth = alerts.filter((alert) => alert.outcome !== null && truthOf(alert) !== null);
 const p = closedWithTruth.map((alert) => alert.p);
 const y = closedWithTruth.map((alert) => truthOf(alert)!);
@@ -60,6 +69,18 @@ beforeAll(async () => {
            r.score, r.probability, r.probability, r.state, r.closed_at, r.final_outcome
       FROM json_to_recordset(${JSON.stringify(rows)}::json)
            AS r(external_id text, received_at timestamptz, score float8, probability float8, state text, closed_at timestamptz, final_outcome text)`;
+  const drift = await prisma.modelVersion.create({ data: { modelName: "mixed", version: "2", scoreKind: "probability", alertThreshold: 0 } });
+  driftingVersionId = drift.id;
+  const driftRows = [
+    ...drifting.reference.map((score, i) => ({ score, received_at: new Date(Date.UTC(2026, 6, 4, 1, 0, i)).toISOString() })),
+    ...drifting.shifted.map((score, i) => ({ score, received_at: new Date(Date.UTC(2026, 6, 5, 1, 0, i)).toISOString() })),
+    ...drifting.short.map((score, i) => ({ score, received_at: new Date(Date.UTC(2026, 6, 6, 1, 0, i)).toISOString() })),
+  ].map((row, i) => ({ ...row, external_id: `d${i}` }));
+  await prisma.$executeRaw`
+    INSERT INTO alerts (external_id, content_hash, received_at, occurred_at, amount_minor, currency, channel, merchant_category_code,
+                        merchant_country, entity_ref, model_version_id, score, probability, priority)
+    SELECT r.external_id, 'h', r.received_at, r.received_at, 100, 'EUR', 'atm', '6011', 'DE', 'tok', ${drift.id}::uuid, r.score, r.score, r.score
+      FROM json_to_recordset(${JSON.stringify(driftRows)}::json) AS r(external_id text, received_at timestamptz, score float8)`;
   // An older, opposite label first: only the latest one counts.
   const labels = alerts.flatMap((alert, i) =>
     alert.label
@@ -77,10 +98,12 @@ beforeAll(async () => {
 });
 
 const query = () => parseModelVersionMetricsQuery(new URLSearchParams("window=day&date=2026-07-06"));
+const firstVersion = async (cap?: number) =>
+  (await getModelVersionMetrics(prisma, { query: query(), now, scoreSampleCap: cap })).modelVersions.find((m) => m.modelVersion.version === "1")!;
 
 describe("SQL aggregation against lib/metrics on the same alerts", () => {
   it("gives the same realized precision, reliability table, Brier score and ECE", async () => {
-    const [metrics] = (await getModelVersionMetrics(prisma, { query: query(), now })).modelVersions;
+    const metrics = await firstVersion();
     const closed = alerts.filter((alert) => alert.outcome !== null);
     expect(metrics.received).toBe(600);
     expect(metrics.closed).toBe(closed.length);
@@ -106,15 +129,15 @@ describe("SQL aggregation against lib/metrics on the same alerts", () => {
   });
 
   it("gives the same ROC AUC and average precision when every score fits in the list", async () => {
-    const [metrics] = (await getModelVersionMetrics(prisma, { query: query(), now })).modelVersions;
+    const metrics = await firstVersion();
     expect(metrics.discrimination.sample).toEqual({ used: p.length, total: p.length, sampled: false });
     expect(metrics.discrimination.rocAuc).toBeCloseTo(rocAuc(p, y)!, 12);
     expect(metrics.discrimination.averagePrecision).toBeCloseTo(averagePrecision(p, y)!, 12);
   });
 
   it("samples a longer list, says so, and draws the same sample every time", async () => {
-    const first = (await getModelVersionMetrics(prisma, { query: query(), now, scoreSampleCap: 100 })).modelVersions[0];
-    const again = (await getModelVersionMetrics(prisma, { query: query(), now, scoreSampleCap: 100 })).modelVersions[0];
+    const first = await firstVersion(100);
+    const again = await firstVersion(100);
     // A Bernoulli sample of rate 100 / n: about 100 alerts (standard deviation below 9 here).
     expect(first.discrimination.sample).toMatchObject({ total: p.length, sampled: true });
     expect(first.discrimination.sample.used).toBeGreaterThan(70);
@@ -123,5 +146,24 @@ describe("SQL aggregation against lib/metrics on the same alerts", () => {
     expect(again.discrimination).toEqual(first.discrimination);
     // A sample of 100 still ranks like the whole: within a loose band of the full AUC.
     expect(Math.abs(first.discrimination.rocAuc! - rocAuc(p, y)!)).toBeLessThan(0.1);
+  });
+
+  it("gives the same PSI as lib/metrics on the same scores, overall and per day, and none for a day with too few scores", async () => {
+    const answer = await getModelVersionMetrics(prisma, {
+      query: parseModelVersionMetricsQuery(new URLSearchParams(`window=day&date=2026-07-06&driftCurrentDays=2&driftReferenceDays=2&modelVersionId=${driftingVersionId}`)),
+      now,
+    });
+    const { drift } = answer.modelVersions[0];
+    // Current = 07-05 and 07-06 (600 + 499 scores), reference = 07-03 and 07-04 (600).
+    expect(drift.reference.sample).toEqual({ used: 600, total: 600, sampled: false });
+    expect(drift.current.sample).toEqual({ used: 1099, total: 1099, sampled: false });
+    const overall = populationStabilityIndex(drifting.reference, [...drifting.shifted, ...drifting.short]);
+    expect(drift.psi).toBeCloseTo(overall.psi, 12);
+    expect(drift.level).toBe(overall.level);
+    expect(drift.bins.map((bin) => bin.actualShare)).toEqual(overall.bins.map((bin) => bin.actualShare));
+    expect(drift.step).toBe("day");
+    expect(drift.series.map((day) => day.scores)).toEqual([600, 499]);
+    expect(drift.series[0].psi).toBeCloseTo(populationStabilityIndex(drifting.reference, drifting.shifted).psi, 12);
+    expect(drift.series[1].psi).toBeNull();
   });
 });
