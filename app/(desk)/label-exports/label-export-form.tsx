@@ -19,7 +19,8 @@ const formatHints: Record<(typeof EXPORT_FORMATS)[number], string> = {
 
 export function LabelExportForm({ modelVersions, defaults }: { modelVersions: ModelVersionChoice[]; defaults: { from: string; asOf: string; maturityDays: number } }) {
   const [state, action] = useActionState(createLabelExportAction, idleFormState);
-  const kept = (name: string, fallback: string) => (state.status === "error" ? (state.values[name] ?? fallback) : fallback);
+  // After a submission (refused or started) the form shows what was sent, not the defaults again.
+  const kept = (name: string, fallback: string) => (state.status === "idle" ? fallback : (state.values[name] ?? fallback));
   return (
     <div className="space-y-3">
       <h2 id="new-export-heading" className="text-base font-semibold">

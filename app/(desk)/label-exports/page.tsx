@@ -50,6 +50,7 @@ function Choices({ item }: { item: LabelExportListItem }) {
 function Status({ item }: { item: LabelExportListItem }) {
   if (item.status === "running") {
     if (item.stalled) return <span className="text-overdue">stalled: no progress for over two minutes (the server may have restarted)</span>;
+    if (item.expectedRowCount === null) return <span>running: counting rows…</span>;
     return (
       <span className="flex items-center gap-2">
         <span>running</span>
