@@ -2,10 +2,33 @@
 // A supervisor's controls on one analyst's row: release everything they hold, or move one held alert
 // to someone else. Each asks for a confirmation first; only the confirmation form sends confirm=yes,
 // and the server refuses a request without it.
-import { useActionState, useState } from "react";
+import { createContext, use, useActionState, useState, type ReactNode } from "react";
 import { idleFormState, type FormState } from "@/lib/http/form-state";
 import { FormMessage, SubmitButton } from "@/app/components/form-parts";
 import { reassignAlertAction, releaseAnalystAlertsAction } from "@/app/(desk)/workload/actions";
+
+// A finished action moves or removes the row it was started from (the page is revalidated), so its
+// outcome is announced above the table, by a provider that stays mounted across the re-render.
+const NoticeContext = createContext<(state: FormState<never>) => void>(() => undefined);
+
+export function ActionNotices({ children }: { children: ReactNode }) {
+  const [notice, setNotice] = useState<FormState<never> | null>(null);
+  return (
+    <NoticeContext value={setNotice}>
+      {notice && (
+        <div className="flex items-start gap-2">
+          <div className="flex-1">
+            <FormMessage state={notice} />
+          </div>
+          <button type="button" className="btn px-2 py-0.5 text-xs" onClick={() => setNotice(null)}>
+            Dismiss
+          </button>
+        </div>
+      )}
+      {children}
+    </NoticeContext>
+  );
+}
 
 export interface HeldAlertView {
   alertId: string;
@@ -21,10 +44,13 @@ export interface AssigneeView {
 
 export function ReleaseAllControl({ analystId, analystName, held }: { analystId: string; analystName: string; held: HeldAlertView[] }) {
   const [confirming, setConfirming] = useState(false);
+  const notify = use(NoticeContext);
   const [state, action] = useActionState(async (previous: FormState<never>, formData: FormData) => {
     const next = await releaseAnalystAlertsAction(previous, formData);
-    if (next.status === "ok") setConfirming(false);
-    return next;
+    if (next.status !== "ok") return next;
+    setConfirming(false);
+    notify(next);
+    return idleFormState;
   }, idleFormState);
   const count = held.length;
   return (
@@ -80,10 +106,13 @@ export function ReassignControl({
   const firstFree = candidates.find((person) => person.heldCount < maxHeld)?.userId ?? "";
   const [target, setTarget] = useState(firstFree);
   const [confirming, setConfirming] = useState(false);
+  const notify = use(NoticeContext);
   const [state, action] = useActionState(async (previous: FormState<never>, formData: FormData) => {
     const next = await reassignAlertAction(previous, formData);
-    if (next.status === "ok") setConfirming(false);
-    return next;
+    if (next.status !== "ok") return next;
+    setConfirming(false);
+    notify(next);
+    return idleFormState;
   }, idleFormState);
   const targetName = candidates.find((person) => person.userId === target)?.displayName ?? "";
   const selectId = `reassign-${alert.alertId}`;

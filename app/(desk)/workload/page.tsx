@@ -13,7 +13,7 @@ import { NotAllowed } from "@/app/components/not-allowed";
 import { formatDuration, formatMoney, formatUtc } from "@/app/components/format";
 import { BacklogChart } from "@/app/components/charts/backlog-chart";
 import { AgeChart } from "@/app/components/charts/age-chart";
-import { ReassignControl, ReleaseAllControl } from "@/app/(desk)/workload/analyst-actions";
+import { ActionNotices, ReassignControl, ReleaseAllControl } from "@/app/(desk)/workload/analyst-actions";
 
 export const metadata: Metadata = { title: "Workload" };
 export const dynamic = "force-dynamic";
@@ -142,7 +142,9 @@ export default async function WorkloadPage({ searchParams }: { searchParams: Pro
           detail={
             team.analystsOnShift === 0
               ? `nobody claimed or closed an alert in the last ${parameters.onShiftHours} h`
-              : `${team.analystsOnShift} on shift · ${team.closedToday} closed today`
+              : team.closingRatePerHour === 0
+                ? `${team.analystsOnShift} on shift, none closed an alert in the last ${parameters.rateWindowHours} h`
+                : `${team.analystsOnShift} on shift at ${rate(team.closingRatePerHour)} · ${team.closedToday} closed today`
           }
         />
       </dl>
@@ -200,84 +202,87 @@ export default async function WorkloadPage({ searchParams }: { searchParams: Pro
         </div>
       </div>
 
-      <div className="panel overflow-x-auto">
-        <table className="data-table">
-          <caption className="px-2 pt-2 text-left text-sm font-semibold">
-            Analysts
-            <span className="ml-2 font-normal text-ink-soft">
-              closing rate over the last {parameters.rateWindowHours} h of work; median handling over {parameters.handlingWindowDays} days
-            </span>
-          </caption>
-          <thead>
-            <tr>
-              <th>Analyst</th>
-              <th>On shift</th>
-              <th>In review</th>
-              <th className="num">Closed today</th>
-              <th className="num">Closing rate</th>
-              <th className="num">Median handling</th>
-              {canManage && <th>Actions</th>}
-            </tr>
-          </thead>
-          <tbody>
-            {workload.analysts.length === 0 && (
+      <ActionNotices>
+        <div className="panel overflow-x-auto">
+          <table className="data-table">
+            <caption className="px-2 pt-2 text-left text-sm font-semibold">
+              Analysts
+              <span className="ml-2 font-normal text-ink-soft">
+                closing rate over the last {parameters.rateWindowHours} h of work; median handling over {parameters.handlingWindowDays} days
+              </span>
+            </caption>
+            <thead>
               <tr>
-                <td colSpan={canManage ? 7 : 6} className="text-ink-soft">
-                  Nobody has claimed or closed an alert in the last {parameters.handlingWindowDays} days.
-                </td>
+                <th>Analyst</th>
+                <th>On shift</th>
+                <th>In review</th>
+                <th className="num">Closed today</th>
+                <th className="num">Closing rate</th>
+                <th className="num">Median handling</th>
+                {canManage && <th>Actions</th>}
               </tr>
-            )}
-            {workload.analysts.map((analyst) => {
-              const held = analyst.held.map((alert) => ({ alertId: alert.alertId, externalId: alert.externalId, heldFor: formatDuration(now.getTime() - alert.claimedAt.getTime()) }));
-              return (
-                <tr key={analyst.userId} className="align-top">
-                  <th scope="row" className="font-normal">
-                    {analyst.displayName}
-                    {!analyst.active && <span className="ml-1 text-xs text-ink-faint">(deactivated)</span>}
-                    {analyst.role !== "analyst" && <span className="ml-1 text-xs text-ink-faint">{analyst.role}</span>}
-                  </th>
-                  <td className={analyst.onShift ? "text-fine" : "text-ink-faint"}>
-                    {analyst.onShift ? "yes" : analyst.lastActivityAt ? `last seen ${formatDuration(now.getTime() - analyst.lastActivityAt.getTime())} ago` : "no"}
+            </thead>
+            <tbody>
+              {workload.analysts.length === 0 && (
+                <tr>
+                  <td colSpan={canManage ? 7 : 6} className="text-ink-soft">
+                    Nobody has claimed or closed an alert in the last {parameters.handlingWindowDays} days.
                   </td>
-                  <td>
-                    {held.length === 0 ? (
-                      <span className="text-ink-faint">none</span>
-                    ) : (
-                      <ul className="space-y-1">
-                        {held.map((alert) => (
-                          <li key={alert.alertId} className="space-y-1">
-                            <span className="font-mono text-xs">{alert.externalId}</span> <span className="text-xs text-ink-soft">for {alert.heldFor}</span>
-                            {canManage && (
-                              <ReassignControl
-                                alert={alert}
-                                holderId={analyst.userId}
-                                holderName={analyst.displayName}
-                                assignees={workload.assignees}
-                                maxHeld={parameters.maxHeldPerAnalyst}
-                                leaseMinutes={parameters.claimLeaseMinutes}
-                              />
-                            )}
-                          </li>
-                        ))}
-                      </ul>
-                    )}
-                  </td>
-                  <td className="num">{analyst.closedToday}</td>
-                  <td className="num" title={`${analyst.reviewsInRateWindow} reviews over ${analyst.hoursAtWork.toFixed(1)} h at work`}>
-                    {rate(analyst.closingRatePerHour)}
-                  </td>
-                  <td className="num">{analyst.medianHandlingSeconds === null ? "—" : formatDuration(analyst.medianHandlingSeconds * 1000)}</td>
-                  {canManage && (
-                    <td>
-                      <ReleaseAllControl analystId={analyst.userId} analystName={analyst.displayName} held={held} />
-                    </td>
-                  )}
                 </tr>
-              );
-            })}
-          </tbody>
-        </table>
-      </div>
+              )}
+              {workload.analysts.map((analyst) => {
+                const held = analyst.held.map((alert) => ({ alertId: alert.alertId, externalId: alert.externalId, heldFor: formatDuration(now.getTime() - alert.claimedAt.getTime()) }));
+                return (
+                  <tr key={analyst.userId} className="align-top">
+                    <th scope="row" className="font-normal">
+                      {analyst.displayName}
+                      {!analyst.active && <span className="ml-1 text-xs text-ink-faint">(deactivated)</span>}
+                      {analyst.role !== "analyst" && <span className="ml-1 text-xs text-ink-faint">{analyst.role}</span>}
+                    </th>
+                    <td className={analyst.onShift ? "text-fine" : "text-ink-faint"}>
+                      {analyst.onShift ? "yes" : analyst.lastActivityAt ? `last seen ${formatDuration(now.getTime() - analyst.lastActivityAt.getTime())} ago` : "no"}
+                    </td>
+                    <td>
+                      {held.length === 0 ? (
+                        <span className="text-ink-faint">none</span>
+                      ) : (
+                        <ul className="space-y-1">
+                          {held.map((alert) => (
+                            <li key={alert.alertId} className="space-y-1">
+                              <span className="font-mono text-xs">{alert.externalId}</span> <span className="text-xs text-ink-soft">for {alert.heldFor}</span>
+                              {canManage && (
+                                <ReassignControl
+                                  alert={alert}
+                                  holderId={analyst.userId}
+                                  holderName={analyst.displayName}
+                                  assignees={workload.assignees}
+                                  maxHeld={parameters.maxHeldPerAnalyst}
+                                  leaseMinutes={parameters.claimLeaseMinutes}
+                                />
+                              )}
+                            </li>
+                          ))}
+                        </ul>
+                      )}
+                    </td>
+                    <td className="num">{analyst.closedToday}</td>
+                    <td className="num" title={`${analyst.reviewsInRateWindow} reviews over ${analyst.hoursAtWork.toFixed(1)} h at work`}>
+                      {rate(analyst.closingRatePerHour)}
+                    </td>
+                    <td className="num">{analyst.medianHandlingSeconds === null ? "—" : formatDuration(analyst.medianHandlingSeconds * 1000)}</td>
+                    {canManage && (
+                      <td>
+                        <ReleaseAllControl analystId={analyst.userId} analystName={analyst.displayName} held={held} />
+                      </td>
+                    )}
+                  </tr>
+                );
+              })}
+            </tbody>
+          </table>
+        </div>
+
+      </ActionNotices>
 
       <div className="grid gap-4 lg:grid-cols-2">
         <div className="panel space-y-2 p-3">

@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import { Fragment } from "react";
 import Link from "next/link";
 import { db } from "@/lib/db/client";
 import { requirePagePermission } from "@/lib/auth/current-user";
@@ -27,6 +28,25 @@ const calibrationWords: Record<ModelVersionCapacity["calibration"]["source"], st
   corrected_score: "score corrected for undersampling (not calibrated yet)",
   prior_hit_rate: "prior hit rate only (not calibrated yet)",
 };
+
+/** What the reader must know before trusting a version's threshold row. */
+function thresholdNotes(version: ModelVersionCapacity): { text: string; warn: boolean }[] {
+  const notes: { text: string; warn: boolean }[] = [];
+  const traffic = perDay(version.observed.trafficPerDay);
+  if (version.threshold.capacityExceedsPool) {
+    notes.push({ text: `K exceeds all traffic seen (${traffic}): any threshold at or below the lowest score seen alerts on all of it.`, warn: false });
+    if (version.observed.belowTheLineSamples === 0) notes.push({ text: "No below-the-line samples: the traffic under the current threshold is unknown.", warn: false });
+  }
+  if (version.threshold.reachesBelowCurrentAlerts) {
+    notes.push({ text: `The threshold is below the current one: the traffic there is estimated from ${version.observed.belowTheLineSamples} below-the-line samples.`, warn: false });
+  }
+  if (!version.threshold.inCalibratedRange) {
+    notes.push({ text: "The threshold is below the lowest labelled score of the calibration map: the precision there is little more than a guess.", warn: true });
+  }
+  if (version.observed.currencies.length > 1) notes.push({ text: `Alerts in ${version.observed.currencies.join(", ")}: money is summed as one currency.`, warn: true });
+  if (version.observed.withoutExposure > 0) notes.push({ text: `${version.observed.withoutExposure} alerts without an exposure are left out.`, warn: false });
+  return notes;
+}
 
 export default async function CapacityPlannerPage({ searchParams }: { searchParams: Promise<SearchParams> }) {
   const access = await requirePagePermission("workload.view");
@@ -136,47 +156,48 @@ export default async function CapacityPlannerPage({ searchParams }: { searchPara
                   <th className="num">Alerts at it</th>
                   <th className="num">Expected precision</th>
                   <th className="num">Expected loss caught</th>
-                  <th>Notes</th>
                 </tr>
               </thead>
               <tbody>
-                {answer.modelVersions.map((version) => (
-                  <tr key={version.modelVersionId} className="align-top">
-                    <th scope="row" className="font-normal whitespace-nowrap">
-                      {version.modelName} {version.version}
-                      {!version.active && <span className="ml-1 text-xs text-ink-faint">(inactive)</span>}
-                    </th>
-                    <td className="text-xs">
-                      {calibrationWords[version.calibration.source]}
-                      {version.calibration.labelCount !== null && <span className="text-ink-soft"> · {version.calibration.labelCount} labels</span>}
-                    </td>
-                    <td className="num">{perDay(version.observed.alertsPerDay)}</td>
-                    <td className="num">{scoreText(version.currentThreshold, version.scoreKind)}</td>
-                    <td className="num font-semibold">
-                      {version.threshold.capacityExceedsPool && version.threshold.threshold !== null && "≤ "}
-                      {scoreText(version.threshold.threshold, version.scoreKind)}
-                    </td>
-                    <td className="num">{perDay(version.threshold.alertsPerDayAtThreshold)}</td>
-                    <td className="num">{formatProbability(version.threshold.precision)}</td>
-                    <td className="num">{money(version.threshold.expectedLossCaughtPerDayMinor)} / day</td>
-                    <td className="min-w-64 text-xs text-ink-soft">
-                      <ul className="space-y-0.5">
-                        {version.threshold.capacityExceedsPool && (
-                          <li>K exceeds all traffic seen ({perDay(version.observed.trafficPerDay)}): any threshold at or below the lowest score seen alerts on all of it.</li>
-                        )}
-                        {version.threshold.reachesBelowCurrentAlerts && (
-                          <li>
-                            Below the current threshold: estimated from {version.observed.belowTheLineSamples} below-the-line samples.
-                          </li>
-                        )}
-                        {!version.threshold.inCalibratedRange && <li className="text-attention">Below the calibrated range: the precision there is a guess.</li>}
-                        {version.observed.belowTheLineSamples === 0 && version.threshold.capacityExceedsPool && <li>No below-the-line samples: traffic under the threshold is unknown.</li>}
-                        {version.observed.currencies.length > 1 && <li>Alerts in {version.observed.currencies.join(", ")}: money summed as one currency.</li>}
-                        {version.observed.withoutExposure > 0 && <li>{version.observed.withoutExposure} alerts without exposure left out.</li>}
-                      </ul>
-                    </td>
-                  </tr>
-                ))}
+                {answer.modelVersions.map((version) => {
+                  const notes = thresholdNotes(version);
+                  return (
+                    <Fragment key={version.modelVersionId}>
+                    <tr className="align-top">
+                      <th scope="row" className="font-normal whitespace-nowrap">
+                        {version.modelName} {version.version}
+                        {!version.active && <span className="ml-1 text-xs text-ink-faint">(inactive)</span>}
+                      </th>
+                      <td className="text-xs">
+                        {calibrationWords[version.calibration.source]}
+                        {version.calibration.labelCount !== null && <span className="text-ink-soft"> · {version.calibration.labelCount} labels</span>}
+                      </td>
+                      <td className="num">{perDay(version.observed.alertsPerDay)}</td>
+                      <td className="num">{scoreText(version.currentThreshold, version.scoreKind)}</td>
+                      <td className="num font-semibold">
+                        {version.threshold.capacityExceedsPool && version.threshold.threshold !== null && "≤ "}
+                        {scoreText(version.threshold.threshold, version.scoreKind)}
+                      </td>
+                      <td className="num">{perDay(version.threshold.alertsPerDayAtThreshold)}</td>
+                      <td className="num">{formatProbability(version.threshold.precision)}</td>
+                      <td className="num">{money(version.threshold.expectedLossCaughtPerDayMinor)} / day</td>
+                    </tr>
+                    {notes.length > 0 && (
+                      <tr>
+                        <td colSpan={8} className="pt-0 text-xs text-ink-soft">
+                          <ul className="list-disc space-y-0.5 pl-5">
+                            {notes.map((note) => (
+                              <li key={note.text} className={note.warn ? "text-attention" : undefined}>
+                                {note.text}
+                              </li>
+                            ))}
+                          </ul>
+                        </td>
+                      </tr>
+                    )}
+                    </Fragment>
+                  );
+                })}
               </tbody>
             </table>
           </div>
