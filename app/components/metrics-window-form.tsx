@@ -3,29 +3,33 @@
 import Link from "next/link";
 import type { ReactNode } from "react";
 import type { FieldIssue } from "@/lib/errors";
-import type { WindowQuery } from "@/lib/feedback/schemas";
 
 const DAY_MS = 86_400_000;
 const day = (time: number) => new Date(time).toISOString().slice(0, 10);
+const DAY = /^\d{4}-\d{2}-\d{2}$/;
 
 export function MetricsWindowForm({
   action,
   label,
-  query,
+  values,
   issues,
   now,
   labelMaturityDays,
   keep = [],
+  showBucket = true,
   children,
 }: {
   action: string;
   label: string;
-  query: WindowQuery | null;
+  /** The values as the reader sent them, so a rejected one stays visible and editable. */
+  values: Record<string, string>;
   issues: FieldIssue[];
   now: Date;
   labelMaturityDays: number;
   /** Parameters the quick links carry over (e.g. the champion and challenger). */
   keep?: [string, string][];
+  /** Whether the screen draws series over time (and so takes a step). */
+  showBucket?: boolean;
   children?: ReactNode;
 }) {
   const today = Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), now.getUTCDate());
@@ -50,26 +54,35 @@ export function MetricsWindowForm({
     </label>
   );
   const invalid = (name: string) => (issueFor(name).length > 0 ? { "aria-invalid": true, "aria-describedby": `mw-${name}-error` } : {});
+  // A date input can only hold a real calendar day; anything else stays as text so it can be corrected.
+  const dateType = (name: string) => ((values[name] ?? "") === "" || (DAY.test(values[name]) && issueFor(name).length === 0) ? "date" : "text");
+  const dateField = (name: string, caption: string) =>
+    field(name, caption, <input id={`mw-${name}`} type={dateType(name)} name={name} defaultValue={values[name] ?? ""} placeholder="YYYY-MM-DD" className="field" {...invalid(name)} />);
 
   return (
     <form method="get" action={action} aria-label={label} className="panel space-y-3 p-3">
+      {issues.length > 0 ? (
+        <p role="alert" className="text-sm text-overdue">
+          Nothing is shown until the window is corrected: {issues.map((issue) => `${issue.path || "window"}: ${issue.message}`).join("; ")}.
+        </p>
+      ) : null}
       <div className="flex flex-wrap items-end gap-3">
         {field(
           "window",
           "Window",
-          <select id="mw-window" name="window" defaultValue={query?.window ?? "custom"} className="field" {...invalid("window")}>
+          <select id="mw-window" name="window" defaultValue={values.window ?? "custom"} className="field" {...invalid("window")}>
             <option value="custom">Range of days</option>
             <option value="day">One day</option>
             <option value="week">One week (Mon–Sun)</option>
           </select>,
         )}
-        {field("date", "Day (one day or week)", <input id="mw-date" type="date" name="date" defaultValue={query?.date ?? ""} className="field" {...invalid("date")} />)}
-        {field("from", "From (range)", <input id="mw-from" type="date" name="from" defaultValue={query?.from ?? ""} className="field" {...invalid("from")} />)}
-        {field("to", "To, included (range)", <input id="mw-to" type="date" name="to" defaultValue={query?.to ?? ""} className="field" {...invalid("to")} />)}
-        {field(
+        {dateField("date", "Day (one day or week)")}
+        {dateField("from", "From (range)")}
+        {dateField("to", "To, included (range)")}
+        {showBucket && field(
           "bucket",
           "Series step",
-          <select id="mw-bucket" name="bucket" defaultValue={query?.bucket ?? ""} className="field" {...invalid("bucket")}>
+          <select id="mw-bucket" name="bucket" defaultValue={values.bucket ?? ""} className="field" {...invalid("bucket")}>
             <option value="">Automatic</option>
             <option value="day">Day</option>
             <option value="week">Week</option>
@@ -108,4 +121,12 @@ export function WindowSummary({ window, what }: { window: { from: string; to: st
       before {window.matureBefore.slice(0, 10)} are mature.
     </p>
   );
+}
+
+/** The first value of each query parameter, as the reader typed it. */
+export function formValues(raw: Record<string, string | string[] | undefined>): Record<string, string> {
+  return Object.fromEntries(Object.entries(raw).flatMap(([key, value]) => {
+    const first = Array.isArray(value) ? value[0] : value;
+    return first === undefined ? [] : [[key, first]];
+  }));
 }

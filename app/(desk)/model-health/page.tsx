@@ -9,7 +9,7 @@ import { getModelVersionMetrics } from "@/lib/feedback/get-model-version-metrics
 import { formWindowInput, parseModelVersionMetricsQuery } from "@/lib/feedback/parse-metrics-query";
 import type { ModelVersionMetrics, ModelVersionMetricsAnswer, ModelVersionMetricsQuery, WindowQuery } from "@/lib/feedback/schemas";
 import { NotAllowed } from "@/app/components/not-allowed";
-import { MetricsWindowForm, WindowSummary } from "@/app/components/metrics-window-form";
+import { formValues, MetricsWindowForm, WindowSummary } from "@/app/components/metrics-window-form";
 import { formatCount, formatDecimal, formatInterval, formatPercent } from "@/app/components/metric-format";
 import { ModelVersionPanel } from "@/app/(desk)/model-health/model-version-panel";
 
@@ -105,7 +105,7 @@ export default async function ModelHealthPage({ searchParams }: { searchParams: 
       <MetricsWindowForm
         action="/model-health"
         label="Window and model versions"
-        query={query}
+        values={formValues(raw)}
         issues={issues}
         now={now}
         labelMaturityDays={settings.metrics.labelMaturityDays}
@@ -141,14 +141,6 @@ export default async function ModelHealthPage({ searchParams }: { searchParams: 
           <input id="mh-drift-reference" type="number" min={1} max={365} name="driftReferenceDays" defaultValue={first(raw.driftReferenceDays) || "28"} className="field w-20" />
         </label>
       </MetricsWindowForm>
-      {issues
-        .filter((issue) => issue.path.startsWith("drift") || issue.path.startsWith("modelVersionId"))
-        .map((issue) => (
-          <p key={issue.path} role="alert" className="text-sm text-overdue">
-            {issue.path}: {issue.message}
-          </p>
-        ))}
-
       {versions.length === 0 ? (
         <p className="text-sm text-ink-soft">No model versions are registered yet. An admin registers them in Settings.</p>
       ) : null}

@@ -10,7 +10,7 @@ import { formWindowInput, parseWindowQuery, windowQueryEntries } from "@/lib/fee
 import type { ReviewerMetricsAnswer, ReviewerNumbers, WindowQuery } from "@/lib/feedback/schemas";
 import type { Rate } from "@/lib/metrics";
 import { NotAllowed } from "@/app/components/not-allowed";
-import { MetricsWindowForm, WindowSummary } from "@/app/components/metrics-window-form";
+import { formValues, MetricsWindowForm, WindowSummary } from "@/app/components/metrics-window-form";
 import { IntervalForestChart } from "@/app/components/charts/interval-forest-chart";
 import { formatCount, formatCounts, formatDecimal, formatInterval, formatPercent, formatSeconds } from "@/app/components/metric-format";
 
@@ -109,7 +109,7 @@ export default async function ReviewerQualityPage({ searchParams }: { searchPara
         </p>
       </div>
 
-      <MetricsWindowForm action="/reviewer-quality" label="Window" query={query} issues={issues} now={now} labelMaturityDays={settings.metrics.labelMaturityDays} />
+      <MetricsWindowForm action="/reviewer-quality" label="Window" values={formValues(raw)} issues={issues} now={now} labelMaturityDays={settings.metrics.labelMaturityDays} showBucket={false} />
 
       {answer ? (
         <>

@@ -22,7 +22,7 @@ export function percent(value: number, digits = 1): string {
 /** The chart as a figure: the SVG with a short summary for screen readers, then a one-line caption that says what to see. */
 export function ChartFigure({ frame, label, caption, legend, children }: { frame: Frame; label: string; caption: ReactNode; legend?: ReactNode; children: ReactNode }) {
   return (
-    <figure className="space-y-1">
+    <figure className="max-w-[44rem] space-y-1">
       <svg viewBox={`0 0 ${frame.width} ${frame.height}`} className="h-auto w-full" role="img" aria-label={label}>
         <g transform={`translate(${frame.margin.left},${frame.margin.top})`}>{children}</g>
       </svg>
