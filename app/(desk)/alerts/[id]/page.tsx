@@ -31,6 +31,8 @@ const stateLabels: Record<AlertDetail["state"], string> = {
 const sourceLabels = { chargeback: "Chargeback", customer_report: "Customer report", analyst: "Analyst" } as const;
 const percent = (value: number, digits = 1) => `${(value * 100).toFixed(digits)}%`;
 const channelLabel = (channel: string) => channel.replaceAll("_", " ");
+/** Seconds matter for short handling times; formatDuration rounds to minutes. */
+const handlingTime = (seconds: number) => (seconds < 90 ? `${seconds} s` : formatDuration(seconds * 1000));
 
 function OutcomeBadge({ outcome }: { outcome: OutcomeValue }) {
   const tone = outcome === "confirmed_fraud" ? "bg-overdue-wash text-overdue" : outcome === "legitimate" ? "bg-fine-wash text-fine" : "bg-attention-wash text-attention";
@@ -285,7 +287,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
                     return (
                       <tr key={other.id} className={fraud ? "bg-overdue-wash/60" : undefined}>
                         <td className="whitespace-nowrap">{formatUtc(other.occurredAt)}</td>
-                        <td>
+                        <td className="whitespace-nowrap">
                           <Link href={`/alerts/${other.id}`} className="font-mono text-xs text-accent underline">
                             {other.externalId}
                           </Link>
@@ -404,7 +406,7 @@ export default async function AlertPage({ params }: { params: Promise<{ id: stri
                       <span className="text-ink-soft">{outcome.reason}</span>
                     </p>
                     <p className="text-xs text-ink-soft">
-                      {outcome.reviewerName}, {formatUtc(outcome.closedAt)}, handled in {formatDuration(outcome.handlingSeconds * 1000)}
+                      {outcome.reviewerName}, {formatUtc(outcome.closedAt)}, handled in {handlingTime(outcome.handlingSeconds)}
                       {outcome.origin === "imported" ? " (imported)" : ""}
                     </p>
                     {outcome.note && <p className="mt-1 whitespace-pre-wrap rounded bg-paper p-2 text-xs">{outcome.note}</p>}
