@@ -3,14 +3,17 @@
 // pure planner (lib/metrics/capacity-planner.ts) does the rest.
 //
 // Binning: per model version and side of the line (alerts vs below-the-line samples), scores are cut
-// into SCORE_BINS bins of equal count (ntile, so a long-tailed anomaly score gets as many bins as a
-// probability), and within each bin exposures into bins one EXPOSURE_LOG_STEP wide on a log scale
-// (a factor of about 1.16). A cell carries its weighted mean score, its weighted mean exposure and
-// its weight per day; alerts weigh 1, below-the-line samples 1/π (Horvitz–Thompson). A few thousand
-// cells per version come back, however many alerts the window holds. Each cell's probability is the
-// version's current calibration at the cell's score (lib/risk fraudProbability: the latest map, or the
-// undersampling-corrected score, or the prior hit rate), not the probability stored on the alerts,
-// which may come from an older map.
+// into SCORE_BINS bins of equal count (ntile), and within each bin exposures into bins one
+// EXPOSURE_LOG_STEP wide on a log scale (a factor of about 1.22); currencies stay in separate cells.
+// A cell carries its weighted mean score, its weighted mean exposure and its weight per day; alerts
+// weigh 1, below-the-line samples 1/π (Horvitz–Thompson). A few thousand cells per version come back,
+// however many alerts the window holds. Each cell's probability is the version's current calibration
+// at the cell's score (lib/risk fraudProbability: the latest map, or the undersampling-corrected
+// score, or the prior hit rate), not the probability stored on the alerts, which may come from an
+// older map.
+//
+// Cost: both passes read the whole window (no index covers it); pass 2 also sorts it once. Measured
+// in tests/workload/workload-volume.integration.test.ts.
 //
 // Days: a version whose first alert in the window came more than a day after the window opened is
 // counted from that first alert, so a version deployed last week is not read at half its volume.
@@ -21,8 +24,8 @@ import { planCapacity as planCapacityCore, type ScoreCell } from "@/lib/metrics/
 import { getSettings } from "@/lib/settings/get-settings";
 import type { CapacityPlanAnswer, CapacityQuery, ModelVersionCapacity } from "@/lib/workload/schemas";
 
-export const SCORE_BINS = 200;
-export const EXPOSURE_LOG_STEP = 0.15;
+export const SCORE_BINS = 400;
+export const EXPOSURE_LOG_STEP = 0.2;
 
 const DAY_MS = 86_400_000;
 
@@ -58,12 +61,12 @@ interface VersionRow {
   alerts: number;
   samples: number;
   withoutExposure: number;
-  currencies: string[];
 }
 
 interface CellRow {
   modelVersionId: string;
   belowTheLine: boolean;
+  currency: string;
   score: number;
   weight: number;
   exposure: number;
@@ -86,52 +89,61 @@ export async function planCapacity(db: DbOrTx, { query, now }: PlanCapacityOptio
   const from = new Date(now.getTime() - query.days * DAY_MS);
   const only = query.modelVersionId;
 
-  // Versions with alerts in the window, with their current calibration map (the latest fit).
-  // alerts_model_version_received_idx serves the per-version range scan.
+  // Pass 1: per model version, what the window holds (one aggregation over the window), joined with
+  // the version and its current calibration map (the latest fit at `now`).
   const versions = await db.$queryRaw<VersionRow[]>`
+    WITH s AS (
+      SELECT model_version_id, min(received_at) AS first_received_at,
+             count(*) FILTER (WHERE NOT below_the_line)::int AS alerts,
+             count(*) FILTER (WHERE below_the_line)::int AS samples,
+             count(*) FILTER (WHERE exposure_minor IS NULL)::int AS without_exposure
+        FROM alerts
+       WHERE received_at >= ${from} AND received_at < ${now}
+         AND (cardinality(${only}::uuid[]) = 0 OR model_version_id = ANY(${only}::uuid[]))
+       GROUP BY model_version_id)
     SELECT m.id, m.model_name AS "modelName", m.version, m.score_kind AS "scoreKind",
            m.negative_sampling_rate AS "negativeSamplingRate", m.prior_hit_rate AS "priorHitRate",
            m.alert_threshold AS "alertThreshold", m.active,
            c.id AS "mapId", c.fitted_at AS "fittedAt", c.label_count AS "labelCount",
            c.score_points AS "scorePoints", c.probability_points AS "probabilityPoints",
-           s."firstReceivedAt", s.alerts, s.samples, s."withoutExposure", s.currencies
-      FROM model_versions m
-      CROSS JOIN LATERAL (
-        SELECT min(received_at) AS "firstReceivedAt",
-               count(*) FILTER (WHERE NOT below_the_line)::int AS alerts,
-               count(*) FILTER (WHERE below_the_line)::int AS samples,
-               count(*) FILTER (WHERE exposure_minor IS NULL)::int AS "withoutExposure",
-               array_agg(DISTINCT currency ORDER BY currency)::text[] AS currencies
-          FROM alerts
-         WHERE model_version_id = m.id AND received_at >= ${from} AND received_at < ${now}
-      ) s
+           s.first_received_at AS "firstReceivedAt", s.alerts, s.samples, s.without_exposure AS "withoutExposure"
+      FROM s
+      JOIN model_versions m ON m.id = s.model_version_id
       LEFT JOIN LATERAL (
         SELECT id, fitted_at, label_count, score_points, probability_points FROM calibration_maps
          WHERE model_version_id = m.id AND fitted_at <= ${now} ORDER BY fitted_at DESC, id LIMIT 1
       ) c ON true
-     WHERE s."firstReceivedAt" IS NOT NULL
-       AND (cardinality(${only}::uuid[]) = 0 OR m.id = ANY(${only}::uuid[]))
      ORDER BY m.active DESC, m.model_name, m.version`;
 
-  const cells = versions.length === 0 ? [] : await db.$queryRaw<CellRow[]>`
+  // Pass 2: the cells. ntile() sorts the window once per version and side of the line; bins of equal
+  // count put the resolution where the alerts are, and one extreme anomaly score cannot squeeze all
+  // the others into a single bin (as bins of equal width between min and max would; tried, and no
+  // faster either: the GROUP BY then sorted the same rows).
+  const cells =
+    versions.length === 0
+      ? []
+      : await db.$queryRaw<CellRow[]>`
     WITH w AS (
-      SELECT a.model_version_id, a.below_the_line, a.score, a.exposure_minor::float8 AS exposure,
+      SELECT a.model_version_id, a.below_the_line, a.currency, a.score, a.exposure_minor::float8 AS exposure,
              1.0::float8 / coalesce(a.inclusion_probability, 1) AS weight
-        FROM model_versions m
-        JOIN alerts a ON a.model_version_id = m.id
-       WHERE m.id = ANY(${versions.map((v) => v.id)}::uuid[])
+        FROM alerts a
+       WHERE a.model_version_id = ANY(${versions.map((v) => v.id)}::uuid[])
          AND a.received_at >= ${from} AND a.received_at < ${now} AND a.exposure_minor IS NOT NULL),
     b AS (
       SELECT *, ntile(${SCORE_BINS}::int) OVER (PARTITION BY model_version_id, below_the_line ORDER BY score) AS score_bin,
              floor(ln(1 + exposure) / ${EXPOSURE_LOG_STEP}::float8)::int AS exposure_bin
         FROM w)
-    SELECT model_version_id AS "modelVersionId", below_the_line AS "belowTheLine",
+    SELECT model_version_id AS "modelVersionId", below_the_line AS "belowTheLine", currency,
            sum(weight * score) / sum(weight) AS score, sum(weight) AS weight, sum(weight * exposure) / sum(weight) AS exposure
       FROM b
-     GROUP BY model_version_id, below_the_line, score_bin, exposure_bin`;
+     GROUP BY model_version_id, below_the_line, currency, score_bin, exposure_bin`;
 
   const cellsByVersion = new Map<string, CellRow[]>();
-  for (const cell of cells) cellsByVersion.set(cell.modelVersionId, [...(cellsByVersion.get(cell.modelVersionId) ?? []), cell]);
+  for (const cell of cells) {
+    const list = cellsByVersion.get(cell.modelVersionId);
+    if (list) list.push(cell);
+    else cellsByVersion.set(cell.modelVersionId, [cell]);
+  }
 
   const modelVersions: ModelVersionCapacity[] = versions.map((version) => {
     const map: IsotonicCalibrationMap | null =
@@ -165,7 +177,7 @@ export async function planCapacity(db: DbOrTx, { query, now }: PlanCapacityOptio
         belowTheLineSamples: version.samples,
         alertsPerDay: version.alerts / days,
         trafficPerDay: plan.trafficPerDay,
-        currencies: version.currencies,
+        currencies: [...new Set((cellsByVersion.get(version.id) ?? []).map((cell) => cell.currency))].sort(),
         withoutExposure: version.withoutExposure,
       },
       threshold: {

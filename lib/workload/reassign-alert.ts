@@ -7,6 +7,7 @@
 import "server-only";
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
 import { auditActorOf, type Actor } from "@/lib/auth/actor";
 import { can, isRole } from "@/lib/auth/permissions";
 import { AppError } from "@/lib/errors";
@@ -93,5 +94,5 @@ export async function reassignAlert(db: DbOrTx, options: ReassignAlertOptions): 
     });
     return { alert: toClaimedAlert(row), fromUserId: current.assignedToId, reassigned: true };
   };
-  return "$transaction" in db ? db.$transaction(run, CLAIM_TRANSACTION) : run(db);
+  return inTransaction(db, run, CLAIM_TRANSACTION);
 }

@@ -5,6 +5,7 @@
 import "server-only";
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
 import { auditActorOf, type Actor, type UserActor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
 import { AppError } from "@/lib/errors";
@@ -71,5 +72,5 @@ export async function releaseAnalystAlerts(db: DbOrTx, options: ReleaseAnalystAl
     }
     return { released };
   };
-  return "$transaction" in db ? db.$transaction(run, CLAIM_TRANSACTION) : run(db);
+  return inTransaction(db, run, CLAIM_TRANSACTION);
 }

@@ -104,6 +104,19 @@ describe("releasing an analyst's held alerts", () => {
     expect(await auditOf(alert.id)).toEqual([]);
   });
 
+  it("joins the caller's transaction: when it rolls back, the release and its audit events go with it", async () => {
+    const alert = await held("rolled-back", ada);
+    const events = await prisma.auditEvent.count();
+    await expect(
+      prisma.$transaction(async (tx) => {
+        await releaseAnalystAlerts(tx, { actor: supervisor, analystId: ada.id, now: NOW });
+        throw new Error("the caller changed its mind");
+      }),
+    ).rejects.toThrow("the caller changed its mind");
+    expect((await prisma.alert.findUniqueOrThrow({ where: { id: alert.id } })).state).toBe("in_review");
+    expect(await prisma.auditEvent.count()).toBe(events);
+  });
+
   it("rejects an unknown analyst and an overlong reason", async () => {
     await expectAppError(releaseAnalystAlerts(prisma, { actor: supervisor, analystId: "00000000-0000-4000-8000-000000000000", now: NOW }), "not_found");
     await expectAppError(releaseAnalystAlerts(prisma, { actor: supervisor, analystId: ada.id, now: NOW, reason: "x".repeat(201) }), "invalid_input");
