@@ -43,7 +43,7 @@ test("a supervisor reads reviewer quality with the team row and intervals; a wro
   await expect(page.getByRole("img", { name: /^Hit rate by reviewer/ })).toBeVisible();
 
   await page.goto("/reviewer-quality?window=day&date=2026-02-30");
-  await expect(page.getByRole("alert")).toContainText("date: not a real calendar date");
+  await expect(page.getByRole("main").getByRole("alert")).toContainText("date: not a real calendar date");
   await expect(page.getByLabel("Day (one day or week)")).toHaveValue("2026-02-30");
 });
 
