@@ -5,6 +5,9 @@ import { mkdirSync } from "node:fs";
 import { expect, test, type Browser, type Page } from "@playwright/test";
 import { DEMO_PASSWORD, demoSignIns } from "@/demo-data/people";
 
+// Each journey visits several pages as one or two people: three times the harness's per-test time.
+test.describe.configure({ timeout: 180_000 });
+
 const ARTIFACTS = "e2e/artifacts";
 mkdirSync(ARTIFACTS, { recursive: true });
 
