@@ -72,6 +72,7 @@ interface BacklogRow {
 interface AnalystRow {
   userId: string;
   displayName: string;
+  pseudonym: string;
   role: string;
   active: boolean;
   closedToday: number;
@@ -165,7 +166,7 @@ export async function getWorkload(db: DbOrTx, options: GetWorkloadOptions): Prom
 
   // 4. Per reviewer: reviews today and in the rate window, the first claim in it, last activity, median handling.
   const analystRows = await db.$queryRaw<AnalystRow[]>`
-    SELECT u.id AS "userId", u.display_name AS "displayName", u.role, u.active,
+    SELECT u.id AS "userId", u.display_name AS "displayName", u.pseudonym, u.role, u.active,
            count(*) FILTER (WHERE o.closed_at >= ${todayStart})::int AS "closedToday",
            count(*) FILTER (WHERE o.closed_at > ${rateStart})::int AS "reviewsInWindow",
            min(o.claimed_at) FILTER (WHERE o.closed_at > ${rateStart}) AS "firstClaimInWindow",
@@ -190,8 +191,8 @@ export async function getWorkload(db: DbOrTx, options: GetWorkloadOptions): Prom
   // 6. People who may take an alert, and the people holding one (a deactivated holder still shows).
   const workRoles = roles.filter((role) => can(role, "alert.work"));
   const heldBy = [...new Set(heldRows.map((row) => row.assignedToId))];
-  const people = await db.$queryRaw<{ userId: string; displayName: string; role: string; active: boolean }[]>`
-    SELECT id AS "userId", display_name AS "displayName", role, active
+  const people = await db.$queryRaw<{ userId: string; displayName: string; pseudonym: string; role: string; active: boolean }[]>`
+    SELECT id AS "userId", display_name AS "displayName", pseudonym, role, active
       FROM users
      WHERE (active AND role = ANY(${workRoles}::text[])) OR id = ANY(${heldBy}::uuid[])
      ORDER BY display_name, id`;
@@ -238,9 +239,13 @@ export async function getWorkload(db: DbOrTx, options: GetWorkloadOptions): Prom
   // ---- People.
   const outcomeByUser = new Map(analystRows.map((row) => [row.userId, row]));
   const heldByUser = new Map<string, HeldRow[]>();
-  for (const row of heldRows) heldByUser.set(row.assignedToId, [...(heldByUser.get(row.assignedToId) ?? []), row]);
+  for (const row of heldRows) {
+    const list = heldByUser.get(row.assignedToId);
+    if (list) list.push(row);
+    else heldByUser.set(row.assignedToId, [row]);
+  }
   const personById = new Map(people.map((person) => [person.userId, person]));
-  for (const row of analystRows) personById.set(row.userId, { userId: row.userId, displayName: row.displayName, role: row.role, active: row.active });
+  for (const row of analystRows) personById.set(row.userId, { userId: row.userId, displayName: row.displayName, pseudonym: row.pseudonym, role: row.role, active: row.active });
 
   const analysts: AnalystWorkload[] = [];
   for (const person of personById.values()) {
@@ -255,6 +260,7 @@ export async function getWorkload(db: DbOrTx, options: GetWorkloadOptions): Prom
     analysts.push({
       userId: person.userId,
       displayName: person.displayName,
+      pseudonym: person.pseudonym,
       role: person.role,
       active: person.active,
       onShift: lastActivityAt !== null && lastActivityAt.getTime() > onShiftSince.getTime(),
@@ -335,7 +341,7 @@ export async function getWorkload(db: DbOrTx, options: GetWorkloadOptions): Prom
     analysts,
     assignees: people
       .filter((person) => person.active && (workRoles as readonly string[]).includes(person.role))
-      .map((person) => ({ userId: person.userId, displayName: person.displayName, role: person.role, heldCount: heldCount(person.userId) })),
+      .map((person) => ({ userId: person.userId, displayName: person.displayName, pseudonym: person.pseudonym, role: person.role, heldCount: heldCount(person.userId) })),
     history,
     ageDistribution,
   };

@@ -12,13 +12,14 @@
 // score, or the prior hit rate), not the probability stored on the alerts, which may come from an
 // older map.
 //
-// Cost: both passes read the whole window (no index covers it); pass 2 also sorts it once. Measured
-// in tests/workload/workload-volume.integration.test.ts.
+// Cost: one index-only range scan of each version's window and one sort of it. Measured in
+// tests/workload/workload-volume.integration.test.ts.
 //
 // Days: a version whose first alert in the window came more than a day after the window opened is
 // counted from that first alert, so a version deployed last week is not read at half its volume.
 import "server-only";
 import type { DbOrTx } from "@/lib/db/client";
+import { isRootClient } from "@/lib/db/in-transaction";
 import { assertIsotonicCalibrationMap, fraudProbability, type IsotonicCalibrationMap, type ScoreKind } from "@/lib/risk";
 import { planCapacity as planCapacityCore, type ScoreCell } from "@/lib/metrics/capacity-planner";
 import { getSettings } from "@/lib/settings/get-settings";
@@ -57,16 +58,15 @@ interface VersionRow {
   labelCount: number | null;
   scorePoints: number[] | null;
   probabilityPoints: number[] | null;
-  firstReceivedAt: Date;
-  alerts: number;
-  samples: number;
-  withoutExposure: number;
 }
 
 interface CellRow {
   modelVersionId: string;
   belowTheLine: boolean;
   currency: string;
+  withoutExposure: boolean;
+  alerts: number;
+  firstReceivedAt: Date;
   score: number;
   weight: number;
   exposure: number;
@@ -89,54 +89,40 @@ export async function planCapacity(db: DbOrTx, { query, now }: PlanCapacityOptio
   const from = new Date(now.getTime() - query.days * DAY_MS);
   const only = query.modelVersionId;
 
-  // Pass 1: per model version, what the window holds (one aggregation over the window), joined with
-  // the version and its current calibration map (the latest fit at `now`).
-  const versions = await db.$queryRaw<VersionRow[]>`
-    WITH s AS (
-      SELECT model_version_id, min(received_at) AS first_received_at,
-             count(*) FILTER (WHERE NOT below_the_line)::int AS alerts,
-             count(*) FILTER (WHERE below_the_line)::int AS samples,
-             count(*) FILTER (WHERE exposure_minor IS NULL)::int AS without_exposure
-        FROM alerts
-       WHERE received_at >= ${from} AND received_at < ${now}
-         AND (cardinality(${only}::uuid[]) = 0 OR model_version_id = ANY(${only}::uuid[]))
-       GROUP BY model_version_id)
-    SELECT m.id, m.model_name AS "modelName", m.version, m.score_kind AS "scoreKind",
-           m.negative_sampling_rate AS "negativeSamplingRate", m.prior_hit_rate AS "priorHitRate",
-           m.alert_threshold AS "alertThreshold", m.active,
-           c.id AS "mapId", c.fitted_at AS "fittedAt", c.label_count AS "labelCount",
-           c.score_points AS "scorePoints", c.probability_points AS "probabilityPoints",
-           s.first_received_at AS "firstReceivedAt", s.alerts, s.samples, s.without_exposure AS "withoutExposure"
-      FROM s
-      JOIN model_versions m ON m.id = s.model_version_id
-      LEFT JOIN LATERAL (
-        SELECT id, fitted_at, label_count, score_points, probability_points FROM calibration_maps
-         WHERE model_version_id = m.id AND fitted_at <= ${now} ORDER BY fitted_at DESC, id LIMIT 1
-      ) c ON true
-     ORDER BY m.active DESC, m.model_name, m.version`;
-
-  // Pass 2: the cells. ntile() sorts the window once per version and side of the line; bins of equal
-  // count put the resolution where the alerts are, and one extreme anomaly score cannot squeeze all
-  // the others into a single bin (as bins of equal width between min and max would; tried, and no
-  // faster either: the GROUP BY then sorted the same rows).
-  const cells =
-    versions.length === 0
-      ? []
-      : await db.$queryRaw<CellRow[]>`
+  // One pass over the window, per model version through alerts_model_version_received_idx, which
+  // INCLUDEs every column read here (migration 20261202081000), so it is an index-only range scan.
+  // ntile() sorts each version's window once; bins of equal count put the resolution where the alerts
+  // are, and one extreme anomaly score cannot squeeze all the others into one bin (as bins of equal
+  // width between min and max would; tried, and no faster: the GROUP BY then sorted the same rows).
+  // Alerts without an exposure form cells of their own, counted and left out of the plan.
+  const readCells = (tx: DbOrTx) => tx.$queryRaw<CellRow[]>`
     WITH w AS (
-      SELECT a.model_version_id, a.below_the_line, a.currency, a.score, a.exposure_minor::float8 AS exposure,
-             1.0::float8 / coalesce(a.inclusion_probability, 1) AS weight
-        FROM alerts a
-       WHERE a.model_version_id = ANY(${versions.map((v) => v.id)}::uuid[])
-         AND a.received_at >= ${from} AND a.received_at < ${now} AND a.exposure_minor IS NOT NULL),
+      SELECT m.id AS model_version_id, a.received_at, a.below_the_line, a.currency, a.score,
+             a.exposure_minor::float8 AS exposure, 1.0::float8 / coalesce(a.inclusion_probability, 1) AS weight
+        FROM model_versions m
+        CROSS JOIN LATERAL (
+          SELECT received_at, below_the_line, currency, score, exposure_minor, inclusion_probability FROM alerts
+           WHERE model_version_id = m.id AND received_at >= ${from} AND received_at < ${now}) a
+       WHERE cardinality(${only}::uuid[]) = 0 OR m.id = ANY(${only}::uuid[])),
     b AS (
-      SELECT *, ntile(${SCORE_BINS}::int) OVER (PARTITION BY model_version_id, below_the_line ORDER BY score) AS score_bin,
+      SELECT *, ntile(${SCORE_BINS}::int) OVER (PARTITION BY model_version_id, below_the_line, exposure IS NULL ORDER BY score) AS score_bin,
              floor(ln(1 + exposure) / ${EXPOSURE_LOG_STEP}::float8)::int AS exposure_bin
         FROM w)
-    SELECT model_version_id AS "modelVersionId", below_the_line AS "belowTheLine", currency,
+    SELECT model_version_id AS "modelVersionId", below_the_line AS "belowTheLine", currency, exposure IS NULL AS "withoutExposure",
+           count(*)::int AS alerts, min(received_at) AS "firstReceivedAt",
            sum(weight * score) / sum(weight) AS score, sum(weight) AS weight, sum(weight * exposure) / sum(weight) AS exposure
       FROM b
-     GROUP BY model_version_id, below_the_line, currency, score_bin, exposure_bin`;
+     GROUP BY model_version_id, below_the_line, currency, exposure IS NULL, score_bin, exposure_bin`;
+
+  // The sort of a 14-day window at a million alerts (about 230,000 rows) needs ~20 MB; PostgreSQL's
+  // default work_mem (4 MB) would spill it to disk. Raised for this statement's own transaction only;
+  // inside a caller's transaction the caller's setting stands.
+  const cells = isRootClient(db)
+    ? await db.$transaction(async (tx) => {
+        await tx.$executeRaw`SET LOCAL work_mem = '32MB'`;
+        return readCells(tx);
+      })
+    : await readCells(db);
 
   const cellsByVersion = new Map<string, CellRow[]>();
   for (const cell of cells) {
@@ -145,22 +131,43 @@ export async function planCapacity(db: DbOrTx, { query, now }: PlanCapacityOptio
     else cellsByVersion.set(cell.modelVersionId, [cell]);
   }
 
+  // The versions seen in the window, with their current calibration map (the latest fit at `now`).
+  const versions = await db.$queryRaw<VersionRow[]>`
+    SELECT m.id, m.model_name AS "modelName", m.version, m.score_kind AS "scoreKind",
+           m.negative_sampling_rate AS "negativeSamplingRate", m.prior_hit_rate AS "priorHitRate",
+           m.alert_threshold AS "alertThreshold", m.active,
+           c.id AS "mapId", c.fitted_at AS "fittedAt", c.label_count AS "labelCount",
+           c.score_points AS "scorePoints", c.probability_points AS "probabilityPoints"
+      FROM model_versions m
+      LEFT JOIN LATERAL (
+        SELECT id, fitted_at, label_count, score_points, probability_points FROM calibration_maps
+         WHERE model_version_id = m.id AND fitted_at <= ${now} ORDER BY fitted_at DESC, id LIMIT 1
+      ) c ON true
+     WHERE m.id = ANY(${[...cellsByVersion.keys()]}::uuid[])
+     ORDER BY m.active DESC, m.model_name, m.version`;
+
   const modelVersions: ModelVersionCapacity[] = versions.map((version) => {
     const map: IsotonicCalibrationMap | null =
       version.mapId === null ? null : assertIsotonicCalibrationMap({ scores: version.scorePoints ?? [], probabilities: version.probabilityPoints ?? [] });
-    const startedInside = version.firstReceivedAt.getTime() - from.getTime() > DAY_MS;
-    const days = (now.getTime() - (startedInside ? version.firstReceivedAt.getTime() : from.getTime())) / DAY_MS;
+    const rows = cellsByVersion.get(version.id) ?? [];
+    const count = (keep: (cell: CellRow) => boolean) => rows.reduce((sum, cell) => sum + (keep(cell) ? cell.alerts : 0), 0);
+    const firstReceivedAt = rows.reduce((first, cell) => Math.min(first, cell.firstReceivedAt.getTime()), Infinity);
+    const alerts = count((cell) => !cell.belowTheLine);
+    const startedInside = firstReceivedAt - from.getTime() > DAY_MS;
+    const days = (now.getTime() - (startedInside ? firstReceivedAt : from.getTime())) / DAY_MS;
     const source: ModelVersionCapacity["calibration"]["source"] = map !== null ? "calibration_map" : version.scoreKind === "probability" ? "corrected_score" : "prior_hit_rate";
-    const scoreCells: ScoreCell[] = (cellsByVersion.get(version.id) ?? []).map((cell) => {
-      const probability = fraudProbability({
-        scoreKind: version.scoreKind,
-        score: cell.score,
-        negativeSamplingRate: version.negativeSamplingRate,
-        priorHitRate: version.priorHitRate,
-        calibrationMap: map,
+    const scoreCells: ScoreCell[] = rows
+      .filter((cell) => !cell.withoutExposure)
+      .map((cell) => {
+        const probability = fraudProbability({
+          scoreKind: version.scoreKind,
+          score: cell.score,
+          negativeSamplingRate: version.negativeSamplingRate,
+          priorHitRate: version.priorHitRate,
+          calibrationMap: map,
+        });
+        return { score: cell.score, perDay: cell.weight / days, probability: probability.probability, exposureMinor: cell.exposure, alerted: !cell.belowTheLine };
       });
-      return { score: cell.score, perDay: cell.weight / days, probability: probability.probability, exposureMinor: cell.exposure, alerted: !cell.belowTheLine };
-    });
     const plan = planCapacityCore({ cells: scoreCells, capacityPerDay: capacity.perDay });
     const scoreRange: [number, number] | null = map ? [map.scores[0], map.scores[map.scores.length - 1]] : null;
     return {
@@ -173,12 +180,12 @@ export async function planCapacity(db: DbOrTx, { query, now }: PlanCapacityOptio
       calibration: { source, calibrationMapId: version.mapId, fittedAt: version.fittedAt, labelCount: version.labelCount, scoreRange },
       observed: {
         days,
-        alerts: version.alerts,
-        belowTheLineSamples: version.samples,
-        alertsPerDay: version.alerts / days,
+        alerts,
+        belowTheLineSamples: count((cell) => cell.belowTheLine),
+        alertsPerDay: alerts / days,
         trafficPerDay: plan.trafficPerDay,
-        currencies: [...new Set((cellsByVersion.get(version.id) ?? []).map((cell) => cell.currency))].sort(),
-        withoutExposure: version.withoutExposure,
+        currencies: [...new Set(rows.map((cell) => cell.currency))].sort(),
+        withoutExposure: count((cell) => cell.withoutExposure),
       },
       threshold: {
         ...plan.threshold,

@@ -108,7 +108,10 @@ export const heldAlertSchema = z.object({
 
 export const analystWorkloadSchema = z.object({
   userId: z.uuid(),
+  /** GET /api/v1/workload sends null here to API tokens: reports get the pseudonym (DESIGN.md §5). */
   displayName: z.string(),
+  /** The person's stable pseudonymous id, as in label exports. */
+  pseudonym: z.string(),
   role: z.string(),
   active: z.boolean(),
   /** A claim or a close in the last `onShiftHours`. */
@@ -161,7 +164,7 @@ export const workloadSchema = z.object({
   byExpectedLoss: z.array(backlogCountsSchema.extend({ band: expectedLossBandSchema })),
   analysts: z.array(analystWorkloadSchema),
   /** People who may be given an alert (active, with a role that works alerts), with how many they hold. */
-  assignees: z.array(z.object({ userId: z.uuid(), displayName: z.string(), role: z.string(), heldCount: z.number().int() })),
+  assignees: z.array(z.object({ userId: z.uuid(), displayName: z.string(), pseudonym: z.string(), role: z.string(), heldCount: z.number().int() })),
   /** One entry per UTC day, oldest first, today last (up to `now`). */
   history: z.array(z.object({ day: z.string(), arrived: z.number().int(), closed: z.number().int(), openAtEnd: z.number().int() })),
   /** Open alerts by age in whole hours; the last bin holds everything at least `fromHours` old. */

@@ -174,6 +174,8 @@ describe("per analyst", () => {
     expect(byName["Ada Quill"].held.map((alert) => alert.externalId)).toEqual(["A7"]);
     expect(byName["Ada Quill"].held[0].claimedAt).toEqual(at("2026-12-02T11:40"));
     expect(byName["Ada Quill"].lastActivityAt).toEqual(at("2026-12-02T11:40"));
+    // Each carries the pseudonym that reports to API tokens use instead of the name.
+    expect(byName["Ada Quill"].pseudonym).toMatch(/^rv_[0-9a-f]{12}$/);
 
     expect(byName["Ben Marlow"]).toMatchObject({ onShift: true, closedToday: 3, hoursAtWork: 2, closingRatePerHour: 1.5, medianHandlingSeconds: 600, held: [] });
     expect(byName["Cleo Fenwick"]).toMatchObject({ onShift: false, closedToday: 0, reviewsInRateWindow: 0, closingRatePerHour: 0, medianHandlingSeconds: 600, handledInHandlingWindow: 2 });

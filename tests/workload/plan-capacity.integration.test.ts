@@ -123,4 +123,17 @@ describe("capacity from staffing and settings", () => {
     expect(answer.assumptions.length).toBeGreaterThan(3);
     expect(answer.window).toEqual({ from: FROM, to: NOW, days: 14 });
   });
+
+  it("counts alerts without an exposure but leaves them out of the plan", async () => {
+    const before = (await planCapacity(prisma, { query: query({ capacity: "50" }), now: NOW })).modelVersions[0];
+    await prisma.$executeRaw`
+      INSERT INTO alerts (external_id, content_hash, received_at, occurred_at, amount_minor, currency, channel, merchant_category_code,
+                          merchant_country, entity_ref, model_version_id, score)
+      VALUES ('unpriced', 'test', ${new Date(NOW.getTime() - 3_600_000)}, ${new Date(NOW.getTime() - 3_600_000)}, 5000, 'EUR', 'card_present',
+              '5411', 'DE', 'card-x', ${model.id}::uuid, 0.99)`;
+    const after = (await planCapacity(prisma, { query: query({ capacity: "50" }), now: NOW })).modelVersions[0];
+    expect(after.observed).toMatchObject({ alerts: before.observed.alerts + 1, withoutExposure: 1 });
+    expect(after.queuePerDay).toBeCloseTo(before.queuePerDay, 9);
+    expect(after.threshold.expectedLossCaughtPerDayMinor).toBeCloseTo(before.threshold.expectedLossCaughtPerDayMinor, 6);
+  });
 });

@@ -4,7 +4,15 @@ import { apiRoute } from "@/lib/http/api-route";
 import { getWorkload } from "@/lib/workload/get-workload";
 import { parseWorkloadQuery } from "@/lib/workload/parse-workload-query";
 
-export const GET = apiRoute("GET /api/v1/workload", async (request, { now, context }) => {
+export const GET = apiRoute("GET /api/v1/workload", async (request, { actor, now, context }) => {
   const query = parseWorkloadQuery(request.nextUrl.searchParams);
-  return getWorkload(db(), { now, horizonHours: query.horizonHours, days: query.days, context: { requestId: context.requestId, ipAddress: context.ipAddress } });
+  const answer = await getWorkload(db(), { now, horizonHours: query.horizonHours, days: query.days, context: { requestId: context.requestId, ipAddress: context.ipAddress } });
+  if (actor.type === "user") return answer;
+  // An API client's report gets the stable pseudonyms only: names stay with the people who may open
+  // the screen (DESIGN.md §5), as for GET /api/v1/metrics/reviewers.
+  return {
+    ...answer,
+    analysts: answer.analysts.map((analyst) => ({ ...analyst, displayName: null })),
+    assignees: answer.assignees.map((person) => ({ ...person, displayName: null })),
+  };
 });
