@@ -16,6 +16,8 @@ export const apiRouteAccess = {
   "GET /api/v1/audit/events": { scope: "metrics:read", permission: "audit.view" },
   // Ingest: the scoring service with its token; supervisors and admins through the upload screen.
   "POST /api/v1/alerts": { scope: "alerts:write", permission: "ingest.upload" },
+  // Signed-in people only: the answer names reviewers and carries their notes.
+  "GET /api/v1/alerts/[id]": { permission: "alert.view" },
   "POST /api/v1/labels": { scope: "labels:write", permission: "ingest.upload" },
   "POST /api/v1/outcomes": { scope: "outcomes:write", permission: "ingest.upload" },
   "GET /api/v1/ingest-batches": { permission: "ingest.view" },
