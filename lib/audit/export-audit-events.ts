@@ -19,6 +19,7 @@ import { auditFilterSql, resolveAuditFilter, selectAuditEvents, type AuditEventV
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditActor, AuditContext, AuditFilter } from "@/lib/audit/schemas";
 import { Prisma } from "@/lib/generated/prisma/client";
+import { csvField, csvRecord } from "@/lib/csv/rfc4180";
 
 export const AUDIT_CSV_COLUMNS = [
   "id",
@@ -36,16 +37,8 @@ export const AUDIT_CSV_COLUMNS = [
   "hash",
 ] as const;
 
-/** One RFC 4180 field: quoted when it holds a comma, a double quote, CR or LF; quotes doubled. Null is empty. */
-export function csvField(value: string | null): string {
-  if (value === null) return "";
-  return /[",\r\n]/.test(value) ? `"${value.replaceAll('"', '""')}"` : value;
-}
-
-/** One record, terminated by CRLF as RFC 4180 §2.1 says. */
-export function csvRecord(values: (string | null)[]): string {
-  return `${values.map(csvField).join(",")}\r\n`;
-}
+// RFC 4180 writing lives in lib/csv (the label exports use the same); re-exported for callers.
+export { csvField, csvRecord };
 
 export function auditEventCsvRecord(event: AuditEventView): string {
   return csvRecord([

@@ -5,6 +5,7 @@ import type { Writable } from "node:stream";
 import { ByteWriter, ParquetWriter, type SchemaElement } from "hyparquet-writer";
 import { AppError } from "@/lib/errors";
 import { LABEL_EXPORT_COLUMNS, LABEL_EXPORT_DICTIONARY, type ColumnType, type ExportFormat, type LabelExportRow } from "@/lib/exports/schemas";
+import { csvField, csvRecord } from "@/lib/csv/rfc4180";
 
 export interface LabelExportWriter {
   /** Writes one batch; resolves when the output can take more (backpressure). */
@@ -71,22 +72,8 @@ export async function writeChunk(sink: Writable, chunk: string | Uint8Array): Pr
 // ---------------------------------------------------------------------------------------------------
 // CSV (RFC 4180)
 
-/**
- * One field as RFC 4180 §2 asks: rule 6, a field containing a line break (CR or LF), a double quote
- * or a comma is enclosed in double quotes; rule 7, a double quote inside it is escaped by another
- * double quote; rule 5, fields without those characters are left bare. An empty (null) value is an
- * empty field.
- */
-export function csvField(value: string | number | boolean | null | undefined): string {
-  if (value === null || value === undefined) return "";
-  const text = typeof value === "string" ? value : String(value);
-  return /[",\r\n]/.test(text) ? `"${text.replaceAll('"', '""')}"` : text;
-}
-
-/** RFC 4180 §2 rule 1: each record ends with CRLF (the last one too: "may or may not"); rule 3: a header line first. */
-export function csvRecord(values: readonly (string | number | boolean | null | undefined)[]): string {
-  return `${values.map(csvField).join(",")}\r\n`;
-}
+// RFC 4180 writing lives in lib/csv; re-exported for the callers of this module.
+export { csvField, csvRecord };
 
 function csvWriter(sink: Writable): LabelExportWriter {
   let headerWritten = false;
