@@ -20,6 +20,7 @@ import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditActor, AuditContext, AuditFilter } from "@/lib/audit/schemas";
 import { Prisma } from "@/lib/generated/prisma/client";
 import { csvField, csvRecord } from "@/lib/csv/rfc4180";
+import { linkStagedAuditEvents } from "@/lib/audit/staged-audit-events";
 
 export const AUDIT_CSV_COLUMNS = [
   "id",
@@ -81,6 +82,7 @@ export interface AuditCsvExport {
 /** `db` must outlive the returned stream: pass the app's client, not a transaction. */
 export async function exportAuditEvents(db: DbOrTx, options: ExportAuditEventsOptions): Promise<AuditCsvExport> {
   const batchSize = options.batchSize ?? 2000;
+  await linkStagedAuditEvents(db);
   const resolved = await resolveAuditFilter(db, options.filter);
   const [head] = await db.$queryRaw<{ id: bigint | null }[]>`SELECT max(id) AS id FROM audit_events`;
   const through = head.id ?? BigInt(0);

@@ -5,6 +5,7 @@
 import { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
 import { auditActions, clearingActions, type AuditFilter, type AuditPage } from "@/lib/audit/schemas";
+import { linkStagedAuditEvents } from "@/lib/audit/staged-audit-events";
 
 export interface AuditEventView {
   id: string;
@@ -209,6 +210,7 @@ export interface FindAuditEventsOptions {
 }
 
 export async function findAuditEvents(db: DbOrTx, options: FindAuditEventsOptions): Promise<AuditEventsPage> {
+  await linkStagedAuditEvents(db);
   const resolved = await resolveAuditFilter(db, options.filter);
   const { limit, before, after } = options.page;
   let events: AuditEventView[];

@@ -3,6 +3,7 @@
 // for its external id (labels can arrive before the alert does).
 import type { DbOrTx } from "@/lib/db/client";
 import { resolveAuditFilter, selectAuditEvents, type AuditEventView } from "@/lib/audit/find-audit-events";
+import { linkStagedAuditEvents } from "@/lib/audit/staged-audit-events";
 
 export interface ListAlertAuditEventsOptions {
   alertId: string;
@@ -12,6 +13,7 @@ export interface ListAlertAuditEventsOptions {
 
 export async function listAlertAuditEvents(db: DbOrTx, options: ListAlertAuditEventsOptions): Promise<{ events: AuditEventView[]; more: boolean }> {
   const limit = options.limit ?? 200;
+  await linkStagedAuditEvents(db);
   const resolved = await resolveAuditFilter(db, { alert: options.alertId });
   const rows = await selectAuditEvents(db, resolved, { order: "asc", limit: limit + 1 });
   return { events: rows.slice(0, limit), more: rows.length > limit };

@@ -3,7 +3,8 @@
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
 import { AppError } from "@/lib/errors";
-import { auditEventHash, GENESIS_HASH } from "@/lib/audit/audit-hash";
+import { inTransaction } from "@/lib/db/in-transaction";
+import { auditEventHash, GENESIS_HASH, type HashedAuditFields } from "@/lib/audit/audit-hash";
 import { auditEventSchema, type AuditActor, type AuditContext, type AuditEventInput } from "@/lib/audit/schemas";
 
 // Appends are serialised with a transaction-scoped advisory lock: the next writer waits until
@@ -30,17 +31,51 @@ export async function recordAuditEvent(tx: Prisma.TransactionClient, options: Re
  */
 export async function recordAuditEvents(tx: Prisma.TransactionClient, events: readonly RecordAuditEventOptions[]): Promise<{ id: bigint; hash: string }[]> {
   if (events.length === 0) return [];
-  const parsedEvents = events.map((options) => {
-    const parsed = auditEventSchema.safeParse(options.event);
-    if (!parsed.success) {
-      throw new AppError("invalid_input", `audit event ${options.event.action}: ${parsed.error.issues.map((issue) => `${issue.path.join(".")}: ${issue.message}`).join("; ")}`);
-    }
-    return parsed.data;
-  });
+  const parsedEvents = events.map((options) => parseAuditEvent(options.event));
+  const head = await lockChainHead(tx);
+  return appendToChain(
+    tx,
+    head.hash,
+    events.map((options, index) => ({
+      // Millisecond precision: the value must survive the round trip through JavaScript's Date unchanged.
+      occurredAt: new Date((options.occurredAt ?? head.now).getTime()),
+      actorType: options.actor.type,
+      actorId: options.actor.id,
+      actorLabel: options.actor.label,
+      action: parsedEvents[index].action,
+      subjectType: options.subject?.type ?? null,
+      subjectId: options.subject?.id ?? null,
+      payload: parsedEvents[index].payload,
+      requestId: options.context?.requestId ?? null,
+      ipAddress: options.context?.ipAddress ?? null,
+    })),
+  );
+}
+
+/** The event checked against its schema; a wrong one is a programming error named by its action. */
+export function parseAuditEvent(event: AuditEventInput): AuditEventInput {
+  const parsed = auditEventSchema.safeParse(event);
+  if (!parsed.success) {
+    throw new AppError("invalid_input", `audit event ${event.action}: ${parsed.error.issues.map((issue) => `${issue.path.join(".")}: ${issue.message}`).join("; ")}`);
+  }
+  return parsed.data;
+}
+
+/**
+ * Takes the chain's lock (held until the transaction ends) and reads the head: the hash the next
+ * event links to, and the database clock.
+ */
+export async function lockChainHead(tx: Prisma.TransactionClient): Promise<{ hash: string; now: Date }> {
   await tx.$executeRaw`SELECT pg_advisory_xact_lock(${AUDIT_CHAIN_LOCK_KEY}::bigint)`;
   const [head] = await tx.$queryRaw<{ hash: string | null; now: Date }[]>`
     SELECT (SELECT hash FROM audit_events ORDER BY id DESC LIMIT 1) AS hash, clock_timestamp() AS now`;
-  let prevHash = head?.hash ?? GENESIS_HASH;
+  return { hash: head.hash ?? GENESIS_HASH, now: head.now };
+}
+
+/** Hashes the events in order after `headHash` and inserts them in one statement; the caller holds the lock. */
+export async function appendToChain(tx: Prisma.TransactionClient, headHash: string, events: readonly HashedAuditFields[]): Promise<{ id: bigint; hash: string }[]> {
+  if (events.length === 0) return [];
+  let prevHash = headHash;
   const columns = {
     occurredAt: [] as Date[],
     actorType: [] as string[],
@@ -55,24 +90,9 @@ export async function recordAuditEvents(tx: Prisma.TransactionClient, events: re
     prevHash: [] as string[],
     hash: [] as string[],
   };
-  events.forEach((options, index) => {
-    const event = parsedEvents[index];
-    // Millisecond precision: the value must survive the round trip through JavaScript's Date unchanged.
-    const occurredAt = new Date((options.occurredAt ?? head.now).getTime());
-    const fields = {
-      occurredAt,
-      actorType: options.actor.type,
-      actorId: options.actor.id,
-      actorLabel: options.actor.label,
-      action: event.action,
-      subjectType: options.subject?.type ?? null,
-      subjectId: options.subject?.id ?? null,
-      payload: event.payload,
-      requestId: options.context?.requestId ?? null,
-      ipAddress: options.context?.ipAddress ?? null,
-    };
+  for (const fields of events) {
     const hash = auditEventHash(prevHash, fields);
-    columns.occurredAt.push(occurredAt);
+    columns.occurredAt.push(fields.occurredAt);
     columns.actorType.push(fields.actorType);
     columns.actorId.push(fields.actorId);
     columns.actorLabel.push(fields.actorLabel);
@@ -85,7 +105,7 @@ export async function recordAuditEvents(tx: Prisma.TransactionClient, events: re
     columns.prevHash.push(prevHash);
     columns.hash.push(hash);
     prevHash = hash;
-  });
+  }
   // unnest(...) WITH ORDINALITY keeps the given order, so identity ids follow the chain order.
   const rows = await tx.$queryRaw<{ id: bigint; hash: string }[]>`
     INSERT INTO audit_events (occurred_at, actor_type, actor_id, actor_label, action, subject_type, subject_id,
@@ -106,7 +126,6 @@ export async function recordAuditEvents(tx: Prisma.TransactionClient, events: re
 
 /** For callers that are not already in a transaction: the event alone, in its own transaction. */
 export async function recordStandaloneAuditEvent(db: DbOrTx, options: RecordAuditEventOptions): Promise<{ id: bigint; hash: string }> {
-  if ("$transaction" in db) return db.$transaction((tx) => recordAuditEvent(tx, options));
-  return recordAuditEvent(db, options);
+  return inTransaction(db, (tx) => recordAuditEvent(tx, options));
 }
 

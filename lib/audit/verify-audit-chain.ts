@@ -8,6 +8,7 @@
 // is still in the chain. If it is, every event up to it is exactly as it was when it was copied.
 import type { DbOrTx } from "@/lib/db/client";
 import { auditEventHash, GENESIS_HASH } from "@/lib/audit/audit-hash";
+import { linkStagedAuditEvents } from "@/lib/audit/staged-audit-events";
 
 export interface BrokenLink {
   /** The first event that fails, or null when what fails is a missing anchor. */
@@ -51,6 +52,8 @@ interface Row {
 }
 
 export async function verifyAuditChain(db: DbOrTx, options: VerifyAuditChainOptions = {}): Promise<AuditChainReport> {
+  // Staged events (lib/audit/staged-audit-events.ts) are linked first, so the report covers them.
+  await linkStagedAuditEvents(db);
   const batchSize = options.batchSize ?? 5000;
   const anchors = new Map<string, string | null>((options.anchors ?? []).map((hash) => [hash.trim().toLowerCase(), null]));
   const anchorResults = () => [...anchors].map(([hash, foundAtId]) => ({ hash, foundAtId }));

@@ -3,11 +3,11 @@
 import "server-only";
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
-import { inTransaction } from "@/lib/db/in-transaction";
+import { inTransaction, isRootClient } from "@/lib/db/in-transaction";
 import type { Actor } from "@/lib/auth/actor";
 import { auditActorOf } from "@/lib/auth/actor";
 import { AppError } from "@/lib/errors";
-import { recordAuditEvent } from "@/lib/audit/record-audit-event";
+import { linkStagedAuditEventsSoon, stageAuditEvent } from "@/lib/audit/staged-audit-events";
 import type { AuditContext } from "@/lib/audit/schemas";
 import { getSettings } from "@/lib/settings/get-settings";
 import { expireLeases } from "@/lib/queue/expire-leases";
@@ -33,8 +33,8 @@ export async function claimAlert(db: DbOrTx, options: ClaimAlertOptions): Promis
 
   const run = async (tx: Prisma.TransactionClient): Promise<ClaimedAlert> => {
     const { queue } = await getSettings(tx);
-    // SKIP LOCKED, not a wait: a row locked now is being claimed or closed by someone else, and a
-    // transaction that may hold the audit lock must not wait for a row (see claim-next-alert.ts).
+    // SKIP LOCKED, not a wait: a row locked now is being claimed or closed by someone else; say so
+    // at once rather than queue behind them.
     const [current] = await tx.$queryRaw<ClaimedAlertRow[]>`
       SELECT ${CLAIMED_ALERT_COLUMNS} FROM alerts a WHERE a.id = ${alertId}::uuid FOR UPDATE SKIP LOCKED`;
     if (!current) {
@@ -56,7 +56,7 @@ export async function claimAlert(db: DbOrTx, options: ClaimAlertOptions): Promis
          SET state = 'in_review', assigned_to_id = ${actor.id}::uuid, claimed_at = ${now}, lease_expires_at = ${leaseExpiresAt}
        WHERE a.id = ${alertId}::uuid AND a.state = 'waiting'
       RETURNING ${CLAIMED_ALERT_COLUMNS}`;
-    await recordAuditEvent(tx, {
+    await stageAuditEvent(tx, {
       actor: auditActorOf(actor),
       event: { action: "alert.claimed", payload: { alertId: row.id, externalId: row.externalId, leaseExpiresAt: leaseExpiresAt.toISOString(), how: "direct" } },
       subject: { type: "alert", id: row.id },
@@ -64,5 +64,9 @@ export async function claimAlert(db: DbOrTx, options: ClaimAlertOptions): Promis
     });
     return toClaimedAlert(row);
   };
-  return inTransaction(db, run, CLAIM_TRANSACTION);
+  const claimed = await inTransaction(db, run, CLAIM_TRANSACTION);
+  // Committed: link the staged event into the audit chain in the background. Inside a caller's
+  // transaction the commit is still to come; the next run or reader of the trail links it then.
+  if (claimed && isRootClient(db)) linkStagedAuditEventsSoon(db);
+  return claimed;
 }

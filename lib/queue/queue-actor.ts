@@ -16,5 +16,5 @@ export function assertMayWorkAlerts(actor: Actor): asserts actor is UserActor {
 // Two-key advisory locks live in their own key space, apart from the one-key audit-chain lock.
 export const QUEUE_LOCK_CLASS = 4_207_001;
 
-/** A claim waits for the audit chain's lock behind other claims; at busy times that is more than Prisma's 5 s default. */
+/** At busy times a claim can wait for a pooled connection longer than Prisma's 5 s default allows. */
 export const CLAIM_TRANSACTION = { maxWait: 10_000, timeout: 30_000 } as const;

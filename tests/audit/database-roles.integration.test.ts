@@ -6,6 +6,7 @@ import { randomBytes } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createDatabaseHandles } from "@/lib/db/client";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
+import { linkStagedAuditEvents, stageAuditEvent } from "@/lib/audit/staged-audit-events";
 import { verifyAuditChain } from "@/lib/audit/verify-audit-chain";
 import { useTestDatabase } from "@/tests/support/test-database";
 import { createUser } from "@/tests/audit/audit-fixtures";
@@ -24,6 +25,7 @@ function appRoleGrants(role: string, databaseName: string): string[] {
     `GRANT USAGE, SELECT ON ALL SEQUENCES IN SCHEMA public TO ${role}`,
     `REVOKE ALL ON audit_events FROM ${role}`,
     `GRANT SELECT, INSERT ON audit_events TO ${role}`,
+    `REVOKE UPDATE, TRUNCATE ON audit_events_staged FROM ${role}`,
   ];
 }
 
@@ -68,6 +70,16 @@ describe("the app's database role on audit_events", () => {
   it("cannot switch the triggers off or drop the table, which only the owner may", async () => {
     await expect(app.pool.query("ALTER TABLE audit_events DISABLE TRIGGER USER")).rejects.toMatchObject({ code: "42501", message: "must be owner of table audit_events" });
     await expect(app.pool.query("DROP TABLE audit_events")).rejects.toMatchObject({ code: "42501" });
+  });
+
+  it("stages, links and reads staged events, but may not rewrite one while it waits to be linked", async () => {
+    const analyst = await createUser(database.pool, { role: "analyst" });
+    await app.prisma.$transaction((tx) =>
+      stageAuditEvent(tx, { actor: analyst.actor, event: { action: "alert.claimed", payload: { alertId: "00000000-0000-4000-8000-0000000000c1", externalId: "C-1", leaseExpiresAt: "2026-12-02T12:30:00.000Z", how: "direct" } } }),
+    );
+    await expect(app.pool.query("UPDATE audit_events_staged SET actor_label = 'x'")).rejects.toMatchObject({ code: "42501" });
+    expect(await linkStagedAuditEvents(app.prisma)).toBe(1);
+    expect(await verifyAuditChain(app.prisma)).toMatchObject({ intact: true });
   });
 
   it("still changes the other tables it works on", async () => {

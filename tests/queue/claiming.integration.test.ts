@@ -14,6 +14,7 @@ import { assertHeldBy } from "@/lib/queue/assert-held-by";
 import { updateSettings } from "@/lib/settings/update-settings";
 import { defaultSettings } from "@/lib/settings/schemas";
 import { verifyAuditChain } from "@/lib/audit/verify-audit-chain";
+import { backgroundLinkingSettled } from "@/lib/audit/staged-audit-events";
 
 const database = await useTestDatabase();
 const prisma = database.prisma;
@@ -73,7 +74,7 @@ describe("sixteen analysts taking the next alert at once", () => {
         analysts.map(async (analyst) => {
           const mine: string[] = [];
           for (;;) {
-            const alert = await claimNextAlert(prisma, { actor: analyst, now: NOW });
+            const alert = await claimNextAlert(database, { actor: analyst, now: NOW });
             if (!alert) return mine;
             expect(alert.assignedToId).toBe(analyst.id);
             mine.push(alert.id);
@@ -94,6 +95,8 @@ describe("sixteen analysts taking the next alert at once", () => {
       claimersWithWork.push(claimedBy.filter((mine) => mine.length > 0).length);
       const [{ waiting }] = await prisma.$queryRaw<{ waiting: number }[]>`SELECT count(*)::int AS waiting FROM alerts WHERE state <> 'closed'`;
       expect(waiting).toBe(0);
+      // Claims stage their audit events and link them into the chain in the background.
+      await backgroundLinkingSettled();
       const audited = await prisma.auditEvent.count({ where: { action: "alert.claimed", subjectId: { in: ids } } });
       expect(audited).toBe(2_000);
       if (round === 5) expect((await verifyAuditChain(prisma)).intact).toBe(true);
@@ -111,15 +114,16 @@ describe("claiming one alert", () => {
   it("take next gives the analyst the top alert with a lease of claimLeaseMinutes", async () => {
     await setQueue({ claimLeaseMinutes: 20 });
     const { high } = await threeAlerts();
-    const claimed = await claimNextAlert(prisma, { actor: ada, now: NOW });
+    const claimed = await claimNextAlert(database, { actor: ada, now: NOW });
     expect(claimed).toMatchObject({ id: high, state: "in_review", assignedToId: ada.id, claimedAt: NOW, leaseExpiresAt: minutesLater(20) });
+    await backgroundLinkingSettled();
     const event = await prisma.auditEvent.findFirstOrThrow({ where: { action: "alert.claimed", subjectId: high } });
     expect(event.actorId).toBe(ada.id);
     expect(event.payload).toMatchObject({ how: "take_next", leaseExpiresAt: minutesLater(20).toISOString() });
   });
 
   it("returns null when nothing is waiting", async () => {
-    expect(await claimNextAlert(prisma, { actor: ada, now: NOW })).toBeNull();
+    expect(await claimNextAlert(database, { actor: ada, now: NOW })).toBeNull();
   });
 
   it("an analyst can open and claim a particular waiting alert; a second click changes nothing", async () => {
@@ -128,6 +132,7 @@ describe("claiming one alert", () => {
     expect(first).toMatchObject({ id: low, state: "in_review", assignedToId: ada.id });
     const again = await claimAlert(prisma, { actor: ada, alertId: low, now: minutesLater(1) });
     expect(again).toEqual(first);
+    await backgroundLinkingSettled();
     expect(await prisma.auditEvent.count({ where: { action: "alert.claimed", subjectId: low } })).toBe(1);
     await expect(claimAlert(prisma, { actor: ben, alertId: low, now: NOW })).rejects.toThrow(/Another analyst holds this alert/);
   });
@@ -142,8 +147,8 @@ describe("claiming one alert", () => {
   it("people who may not work alerts cannot claim", async () => {
     await threeAlerts();
     const auditor = await createUser(prisma, { role: "auditor" });
-    await expect(claimNextAlert(prisma, { actor: auditor, now: NOW })).rejects.toMatchObject({ code: "forbidden" });
-    await expect(claimNextAlert(prisma, { actor: { type: "system", id: null, name: "job" }, now: NOW })).rejects.toMatchObject({ code: "forbidden" });
+    await expect(claimNextAlert(database, { actor: auditor, now: NOW })).rejects.toMatchObject({ code: "forbidden" });
+    await expect(claimNextAlert(database, { actor: { type: "system", id: null, name: "job" }, now: NOW })).rejects.toMatchObject({ code: "forbidden" });
   });
 });
 
@@ -151,10 +156,10 @@ describe("hold limit", () => {
   it("refuses a claim beyond maxHeldPerAnalyst with a clear message, and allows it after a release", async () => {
     await setQueue({ maxHeldPerAnalyst: 2 });
     const { high, middle, low } = await threeAlerts();
-    expect((await claimNextAlert(prisma, { actor: ada, now: NOW }))!.id).toBe(high);
-    expect((await claimNextAlert(prisma, { actor: ada, now: NOW }))!.id).toBe(middle);
+    expect((await claimNextAlert(database, { actor: ada, now: NOW }))!.id).toBe(high);
+    expect((await claimNextAlert(database, { actor: ada, now: NOW }))!.id).toBe(middle);
 
-    const refused = await claimNextAlert(prisma, { actor: ada, now: NOW }).catch((error: unknown) => error);
+    const refused = await claimNextAlert(database, { actor: ada, now: NOW }).catch((error: unknown) => error);
     expect(refused).toBeInstanceOf(AppError);
     expect(refused).toMatchObject({ code: "conflict" });
     expect((refused as AppError).message).toMatch(/already hold 2 alerts, the most an analyst may hold at once \(2\)/);
@@ -162,16 +167,16 @@ describe("hold limit", () => {
     expect((await stateOf(low)).state).toBe("waiting");
 
     // Another analyst is not held back by Ada's limit.
-    expect((await claimNextAlert(prisma, { actor: ben, now: NOW }))!.id).toBe(low);
+    expect((await claimNextAlert(database, { actor: ben, now: NOW }))!.id).toBe(low);
     await releaseAlert(prisma, { actor: ada, alertId: middle, now: NOW });
-    expect((await claimNextAlert(prisma, { actor: ada, now: NOW }))!.id).toBe(middle);
+    expect((await claimNextAlert(database, { actor: ada, now: NOW }))!.id).toBe(middle);
   });
 
   it("a lowered limit applies to the very next claim", async () => {
     await threeAlerts();
-    await claimNextAlert(prisma, { actor: ada, now: NOW });
+    await claimNextAlert(database, { actor: ada, now: NOW });
     await setQueue({ maxHeldPerAnalyst: 1 });
-    await expect(claimNextAlert(prisma, { actor: ada, now: NOW })).rejects.toMatchObject({ code: "conflict" });
+    await expect(claimNextAlert(database, { actor: ada, now: NOW })).rejects.toMatchObject({ code: "conflict" });
   });
 });
 
@@ -179,7 +184,7 @@ describe("leases", () => {
   it("an expired lease returns the alert to the queue, audited, and someone else can take it", async () => {
     await setQueue({ claimLeaseMinutes: 30 });
     const { high } = await threeAlerts();
-    await claimNextAlert(prisma, { actor: ada, now: NOW });
+    await claimNextAlert(database, { actor: ada, now: NOW });
 
     expect(await expireLeases(prisma, { now: minutesLater(29) })).toEqual([]);
     expect((await stateOf(high)).state).toBe("in_review");
@@ -192,17 +197,17 @@ describe("leases", () => {
     expect(await expireLeases(prisma, { now: minutesLater(31) })).toEqual([]);
 
     // Claiming sweeps expired leases first: Ben gets the alert Ada let lapse.
-    await claimNextAlert(prisma, { actor: ada, now: minutesLater(31) }); // Ada takes it again…
-    const taken = await claimNextAlert(prisma, { actor: ben, now: minutesLater(62) }); // …and lets it lapse again.
+    await claimNextAlert(database, { actor: ada, now: minutesLater(31) }); // Ada takes it again…
+    const taken = await claimNextAlert(database, { actor: ben, now: minutesLater(62) }); // …and lets it lapse again.
     expect(taken!.id).toBe(high);
     expect(taken!.assignedToId).toBe(ben.id);
   });
 
   it("lists an analyst's own alerts in review with their leases", async () => {
     const { high, middle } = await threeAlerts();
-    await claimNextAlert(prisma, { actor: ada, now: NOW });
-    await claimNextAlert(prisma, { actor: ada, now: minutesLater(5) });
-    await claimNextAlert(prisma, { actor: ben, now: NOW });
+    await claimNextAlert(database, { actor: ada, now: NOW });
+    await claimNextAlert(database, { actor: ada, now: minutesLater(5) });
+    await claimNextAlert(database, { actor: ben, now: NOW });
     const held = await getHeldAlerts(prisma, { userId: ada.id, now: minutesLater(32) });
     expect(held.map((alert) => [alert.id, alert.leaseExpired])).toEqual([
       [high, true],
@@ -214,7 +219,7 @@ describe("leases", () => {
 describe("releasing", () => {
   it("the holder releases by hand, audited; releasing again changes nothing", async () => {
     const { high } = await threeAlerts();
-    await claimNextAlert(prisma, { actor: ada, now: NOW });
+    await claimNextAlert(database, { actor: ada, now: NOW });
     const released = await releaseAlert(prisma, { actor: ada, alertId: high, now: NOW, reason: "need a colleague's view" });
     expect(released.released).toBe(true);
     expect(released.alert).toMatchObject({ state: "waiting", assignedToId: null, leaseExpiresAt: null });
@@ -224,12 +229,12 @@ describe("releasing", () => {
     expect((await releaseAlert(prisma, { actor: ada, alertId: high, now: NOW })).released).toBe(false);
     expect(await prisma.auditEvent.count({ where: { action: "alert.released", subjectId: high } })).toBe(1);
     // Back at the front of the queue.
-    expect((await claimNextAlert(prisma, { actor: ben, now: NOW }))!.id).toBe(high);
+    expect((await claimNextAlert(database, { actor: ben, now: NOW }))!.id).toBe(high);
   });
 
   it("another analyst cannot release it; a supervisor can", async () => {
     const { high } = await threeAlerts();
-    await claimNextAlert(prisma, { actor: ada, now: NOW });
+    await claimNextAlert(database, { actor: ada, now: NOW });
     await expect(releaseAlert(prisma, { actor: ben, alertId: high, now: NOW })).rejects.toThrow(/only they or a supervisor/);
     const released = await releaseAlert(prisma, { actor: supervisor, alertId: high, now: NOW, reason: "Ada is off sick" });
     expect(released.released).toBe(true);
