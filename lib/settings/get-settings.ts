@@ -9,8 +9,13 @@ export async function getSettings(db: DbOrTx): Promise<Settings> {
   for (const row of rows) {
     if (!(row.key in settingsSchemas)) continue;
     const key = row.key as SettingsKey;
-    const parsed = settingsSchemas[key].safeParse(row.value);
-    if (parsed.success) (settings as Record<SettingsKey, unknown>)[key] = parsed.data;
+    (settings as Record<SettingsKey, unknown>)[key] = settingsGroupOf(key, row.value);
   }
   return settings;
+}
+
+/** One group from its stored value (undefined when none is stored), by the same rule as getSettings. */
+export function settingsGroupOf<K extends SettingsKey>(key: K, stored: unknown): Settings[K] {
+  const parsed = settingsSchemas[key].safeParse(stored);
+  return parsed.success ? (parsed.data as Settings[K]) : structuredClone(defaultSettings[key]);
 }

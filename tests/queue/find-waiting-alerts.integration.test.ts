@@ -88,7 +88,7 @@ describe("waiting alerts on the Queue screen", () => {
 
 describe("the counts and the second reviews", () => {
   it("count waiting, overdue, in review and second review, and know the last arrival", async () => {
-    const claimed = await claimNextAlert(prisma, { actor: ines, now: NOW });
+    const claimed = await claimNextAlert(database, { actor: ines, now: NOW });
     expect(claimed?.id).toBe(ids["late-small"]);
     const counts = await getQueueCounts(prisma, { now: NOW });
     expect(counts).toEqual({ waiting: 3, overdue: 0, inReview: 1, secondReview: 0, lastArrivalAt: hoursFromNow(-1) });

@@ -49,7 +49,7 @@ async function deriveAll(): Promise<void> {
 async function takeAll(actor: UserActor): Promise<string[]> {
   const taken: string[] = [];
   for (;;) {
-    const alert = await claimNextAlert(prisma, { actor, now: NOW });
+    const alert = await claimNextAlert(database, { actor, now: NOW });
     if (!alert) return taken;
     taken.push(alert.externalId);
   }
@@ -154,9 +154,9 @@ describe("queue order", () => {
   it("an alert that falls due while it waits moves to the front at the next claim", async () => {
     await createHandWorked({ A5: 47 }); // due in 1 h
     await deriveAll();
-    expect((await claimNextAlert(prisma, { actor: analyst, now: NOW }))!.externalId).toBe("A4");
+    expect((await claimNextAlert(database, { actor: analyst, now: NOW }))!.externalId).toBe("A4");
     const later = new Date(NOW.getTime() + 61 * 60_000);
-    expect((await claimNextAlert(prisma, { actor: analyst, now: later }))!.externalId).toBe("A5");
+    expect((await claimNextAlert(database, { actor: analyst, now: later }))!.externalId).toBe("A5");
   });
 
   it("matches lib/risk's compareQueueOrder on random alerts with ties", async () => {
@@ -188,10 +188,10 @@ describe("queue order", () => {
     const analysts = await Promise.all(Array.from({ length: 7 }, () => createUser(prisma)));
     const taken: string[] = [];
     for (let i = 0; i < entries.length; i++) {
-      taken.push((await claimNextAlert(prisma, { actor: analysts[i % analysts.length], now: NOW }))!.id);
+      taken.push((await claimNextAlert(database, { actor: analysts[i % analysts.length], now: NOW }))!.id);
     }
     expect(taken).toEqual(expected);
-    expect(await claimNextAlert(prisma, { actor: analyst, now: NOW })).toBeNull();
+    expect(await claimNextAlert(database, { actor: analyst, now: NOW })).toBeNull();
   });
 
   it("a queue or cost settings change re-derives waiting alerts at once", async () => {
