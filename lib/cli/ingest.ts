@@ -10,7 +10,7 @@ import { AppError } from "@/lib/errors";
 import { cliActor, withDefaultDatabase } from "@/lib/cli/cli-support";
 import { parseArguments, runCommand } from "@/lib/cli/run-command";
 import { INGEST_KINDS, type IngestAnswer, type IngestKind, type IngestProblem } from "@/lib/ingest/ingest-batch";
-import { ingestAlerts } from "@/lib/ingest/ingest-alerts";
+import { ingestAlertBatches, ingestAlerts } from "@/lib/ingest/ingest-alerts";
 import { ingestLabels } from "@/lib/ingest/ingest-labels";
 import { ingestOutcomes } from "@/lib/ingest/ingest-outcomes";
 import { csvRecordToAlertInput, csvRecordToLabelInput, csvRecordToOutcomeInput, parseCsv, parseJsonArrayBody, parseNdjsonBody } from "@/lib/ingest/parse-body";
@@ -77,20 +77,32 @@ await runCommand(async () => {
 
     // An empty file still makes one (empty) batch, so the run shows in the ingest log.
     const offsets = rows.length === 0 ? [0] : Array.from({ length: Math.ceil(rows.length / size) }, (_, index) => index * size);
-    for (const offset of offsets) {
-      const answer: IngestAnswer = await ingestByKind[kind](prisma, {
-        actor,
-        rows: rows.slice(offset, offset + size),
-        channel: "command_line",
-        atomic,
-        fileName,
-        rowOffset: offset,
-        now: new Date(),
-      });
+    const tally = (answer: IngestAnswer, offset: number) => {
       batches.push(answer.batchId);
       for (const key of Object.keys(totals) as (keyof typeof totals)[]) totals[key] += answer[key];
       problems.push(...answer.errors, ...answer.conflicts);
       progress(Math.min(offset + size, rows.length));
+    };
+    if (kind === "alerts") {
+      // Alerts, the bulk of any back-fill, are pipelined: the next batch is checked and priced
+      // while the database stores the one before (lib/ingest/ingest-alerts.ts).
+      const batchesOfFile = (function* () {
+        for (const offset of offsets) yield { rows: rows.slice(offset, offset + size), rowOffset: offset, now: new Date() };
+      })();
+      await ingestAlertBatches(prisma, batchesOfFile, { actor, channel: "command_line", atomic, fileName }, tally);
+    } else {
+      for (const offset of offsets) {
+        const answer: IngestAnswer = await ingestByKind[kind](prisma, {
+          actor,
+          rows: rows.slice(offset, offset + size),
+          channel: "command_line",
+          atomic,
+          fileName,
+          rowOffset: offset,
+          now: new Date(),
+        });
+        tally(answer, offset);
+      }
     }
     if (process.stderr.isTTY) process.stderr.write("\n");
 

@@ -140,8 +140,25 @@ function findPanInRun(run: DigitRun): string | null {
   return null;
 }
 
+/**
+ * True when `text` cannot hold a card number without looking further: plain ASCII with fewer than
+ * 13 digits. Most fields (names, codes, ids, timestamps) end here, before the NFKC normalisation and
+ * run splitting, which cost several microseconds a field — a third of ingest's JavaScript time.
+ * Any character outside ASCII (full-width digits, no-break spaces) takes the full path.
+ */
+function tooFewDigitsForPan(text: string): boolean {
+  let digits = 0;
+  for (let i = 0; i < text.length; i++) {
+    const code = text.charCodeAt(i);
+    if (code > 127) return false;
+    if (code >= 48 && code <= 57 && ++digits >= MIN_PAN_DIGITS) return false;
+  }
+  return true;
+}
+
 /** The first digit sequence inside `value` that looks like a full card number, or null. */
 function findPanInText(value: string): string | null {
+  if (tooFewDigitsForPan(value)) return null;
   for (const run of digitRuns(value)) {
     const found = findPanInRun(run);
     if (found !== null) return found;

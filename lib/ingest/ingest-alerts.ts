@@ -14,6 +14,7 @@ import type { DbOrTx } from "@/lib/db/client";
 import { deriveRiskFields, type DeriveRiskFieldsInput, type DerivedRiskFields } from "@/lib/alerts/derive-risk-fields";
 import { assertIsotonicCalibrationMap, type ScoreKind } from "@/lib/risk";
 import { getSettings } from "@/lib/settings/get-settings";
+import type { Settings } from "@/lib/settings/schemas";
 import { alertContentHash } from "@/lib/ingest/content-hash";
 import { alertRowSchema, type AlertRow } from "@/lib/ingest/schemas";
 import { validateRows } from "@/lib/ingest/validate-rows";
@@ -98,10 +99,35 @@ function modelKey(modelName: string, version: string): string {
   return JSON.stringify([modelName, version]);
 }
 
-export async function ingestAlerts(db: DbOrTx, options: IngestAlertsOptions): Promise<IngestAlertsAnswer> {
+/** What pricing a row needs from the database: read once per call, or once per file by ingestAlertBatches. */
+export interface AlertIngestContext {
+  settings: Settings;
+  modelVersions: Map<string, KnownModelVersion>;
+}
+
+export async function loadAlertIngestContext(db: DbOrTx): Promise<AlertIngestContext> {
+  const [settings, modelVersions] = await Promise.all([getSettings(db), loadModelVersions(db)]);
+  return { settings, modelVersions };
+}
+
+/** A batch validated and priced in memory, ready to store. */
+export interface PreparedAlerts {
+  rowCount: number;
+  errors: ProblemList;
+  conflicts: ProblemList;
+  candidates: PricedAlert[];
+  duplicate: number;
+}
+
+export type PrepareAlertsOptions = Pick<IngestAlertsOptions, "rows" | "now" | "allowReceivedAt" | "rowOffset">;
+
+/**
+ * Validation, the card-number guard and pricing: JavaScript only, no I/O, so a caller can prepare
+ * the next batch while the database stores the previous one.
+ */
+export function prepareAlerts(context: AlertIngestContext, options: PrepareAlertsOptions): PreparedAlerts {
   const { rows, now } = options;
-  const settings = await getSettings(db);
-  const modelVersions = await loadModelVersions(db);
+  const { settings, modelVersions } = context;
 
   const errors = new ProblemList(rows, options.rowOffset ?? 0);
   const validation = validateRows(rows, alertRowSchema({ channels: settings.ingest.channels }));
@@ -168,9 +194,48 @@ export async function ingestAlerts(db: DbOrTx, options: IngestAlertsOptions): Pr
       conflicts.add({ row: alert.row, path: "externalId", message: `conflict: row ${first.row + (options.rowOffset ?? 0)} of this request has the same externalId with different content` });
     }
   }
+  return { rowCount: rows.length, errors, conflicts, candidates, duplicate };
+}
 
+export async function ingestAlerts(db: DbOrTx, options: IngestAlertsOptions): Promise<IngestAlertsAnswer> {
+  const context = await loadAlertIngestContext(db);
+  return storePreparedAlerts(db, prepareAlerts(context, options), options);
+}
+
+/**
+ * Many batches of one file, pipelined: batch n+1 is validated and priced while the database is
+ * still storing batch n (JavaScript and PostgreSQL then work side by side, on two cores). Each
+ * batch commits on its own, as with ingestAlerts; settings and model versions are read once.
+ */
+export async function ingestAlertBatches(
+  db: DbOrTx,
+  batches: Iterable<{ rows: readonly unknown[]; rowOffset: number; now: Date }>,
+  options: Omit<IngestAlertsOptions, "rows" | "rowOffset" | "now">,
+  onStored?: (answer: IngestAlertsAnswer, rowOffset: number) => void,
+): Promise<IngestAlertsAnswer[]> {
+  const context = await loadAlertIngestContext(db);
+  const answers: IngestAlertsAnswer[] = [];
+  let storing: Promise<void> | null = null;
+  for (const batch of batches) {
+    const batchOptions = { ...options, rows: batch.rows, rowOffset: batch.rowOffset, now: batch.now };
+    const prepared = prepareAlerts(context, batchOptions);
+    if (storing) await storing;
+    storing = storePreparedAlerts(db, prepared, batchOptions).then((answer) => {
+      answers.push(answer);
+      onStored?.(answer, batch.rowOffset);
+    });
+  }
+  if (storing) await storing;
+  return answers;
+}
+
+/** Writes a prepared batch: the alerts, the batch row, its audit event and label matching, in one transaction. */
+export async function storePreparedAlerts(db: DbOrTx, prepared: PreparedAlerts, options: Omit<IngestAlertsOptions, "rows">): Promise<IngestAlertsAnswer> {
+  const { errors, conflicts, candidates, rowCount } = prepared;
+  let { duplicate } = prepared;
+  const { now } = options;
   return inBatchTransaction(db, async (tx) => {
-    const batchId = await openIngestBatch(tx, { kind: "alerts", channel: options.channel, actor: options.actor, fileName: options.fileName, now, rowCount: rows.length });
+    const batchId = await openIngestBatch(tx, { kind: "alerts", channel: options.channel, actor: options.actor, fileName: options.fileName, now, rowCount });
     let accepted = 0;
     let rolledBack = false;
 
@@ -198,7 +263,7 @@ export async function ingestAlerts(db: DbOrTx, options: IngestAlertsOptions): Pr
     const conflict = conflicts.rowCount;
     // All or nothing: every row of a rolled-back atomic request counts as rejected unless it conflicted.
     const counts = rolledBack
-      ? { accepted: 0, duplicate: 0, conflict, rejected: rows.length - conflict }
+      ? { accepted: 0, duplicate: 0, conflict, rejected: rowCount - conflict }
       : { accepted, duplicate, conflict, rejected: errors.rowCount };
     const labelsMatched = accepted > 0 ? await matchWaitingLabels(tx, batchId) : 0;
 
@@ -207,7 +272,7 @@ export async function ingestAlerts(db: DbOrTx, options: IngestAlertsOptions): Pr
       kind: "alerts",
       channel: options.channel,
       actor: options.actor,
-      rowCount: rows.length,
+      rowCount,
       counts,
       errors: errors.items,
       conflicts: conflicts.items,

@@ -1,6 +1,6 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { useTestDatabase } from "@/tests/support/test-database";
-import { ingestAlerts } from "@/lib/ingest/ingest-alerts";
+import { ingestAlertBatches, ingestAlerts } from "@/lib/ingest/ingest-alerts";
 import { alertRow, loader, nextExternalId, registerModelVersions } from "@/tests/ingest/factories";
 
 const database = await useTestDatabase();
@@ -190,4 +190,36 @@ describe("ingest of scored alerts", () => {
     console.info(`ingest of ${bulk} alerts: ${seconds.toFixed(2)} s`);
     expect(await storedCount([rows[0].externalId as string, rows[bulk - 1].externalId as string])).toBe(2);
   }, 600_000);
+});
+
+describe("a file in pipelined batches (ingestAlertBatches, as npm run ingest sends alerts)", () => {
+  it("stores each batch on its own, in order, with the same answers as one call per batch", async () => {
+    const repeated = alertRow();
+    const batches = [
+      [alertRow(), repeated, alertRow({ entityRef: "" })],
+      [alertRow(), { ...repeated }, alertRow({ ...repeated, amountMinor: 99_999 })],
+      [alertRow()],
+    ];
+    const offsets = [0, 3, 6];
+    const stored: number[] = [];
+    const answers = await ingestAlertBatches(
+      prisma,
+      batches.map((rows, index) => ({ rows, rowOffset: offsets[index], now })),
+      { actor: loader, channel: "command_line" },
+      (_answer, rowOffset) => stored.push(rowOffset),
+    );
+    expect(stored).toEqual(offsets);
+    expect(answers.map(({ accepted, duplicate, conflict, rejected }) => ({ accepted, duplicate, conflict, rejected }))).toEqual([
+      { accepted: 2, duplicate: 0, conflict: 0, rejected: 1 },
+      // The repeat of an alert stored by the batch before is a duplicate; changed content, a conflict.
+      { accepted: 1, duplicate: 1, conflict: 1, rejected: 0 },
+      { accepted: 1, duplicate: 0, conflict: 0, rejected: 0 },
+    ]);
+    // Row numbers count from the start of the file.
+    expect(answers[0].errors[0].row).toBe(2);
+    expect(answers[1].conflicts[0].row).toBe(5);
+    expect(new Set(answers.map((answer) => answer.batchId)).size).toBe(3);
+    const ids = batches.flat().map((row) => row.externalId as string);
+    expect(await storedCount(ids)).toBe(4);
+  });
 });
