@@ -52,6 +52,9 @@ function slug(text: string): string {
 
 /** Waits for the screen to settle, checks it rendered its own heading, and saves a screenshot. */
 async function capture(page: Page, testInfo: TestInfo, folder: string, index: number, name: string): Promise<string> {
+  // A screen streams in behind its loading state (app/(desk)/**/loading.tsx: a heading "…-loading-heading"
+  // or a busy placeholder): wait until the real screen has replaced it.
+  await expect(page.locator('[id$="-loading-heading"], main [aria-busy="true"]')).toHaveCount(0, { timeout: 60_000 });
   await page.waitForLoadState("networkidle");
   const heading = page.getByRole("main").getByRole("heading", { level: 1 }).first();
   await expect(heading).toBeVisible();
