@@ -186,6 +186,8 @@ export async function getModelVersionMetrics(db: DbOrTx, options: GetModelVersio
   // so (bins − 1) minus it is the count of edges < p: the (lower, upper] bin lib/metrics uses.
   const negatedEdges = calibrationInnerEdges().map((edge) => -edge).reverse();
   const step = window.bucket === "day" ? "1 day" : "7 days";
+  const dayList = days.map((day) => day.from.toISOString().slice(0, 10));
+  const topTruth = groundTruthExpression(Prisma.sql`top.final_outcome`, Prisma.sql`ext.label`);
 
   // One statement: the window's alerts and their ground truth are read once (`t`), then aggregated
   // five ways. Each aggregation comes back as a JSON array of a few rows per model version.
@@ -249,14 +251,20 @@ export async function getModelVersionMetrics(db: DbOrTx, options: GetModelVersio
          WHERE NOT t.btl AND t.closed AND t.y IS NOT NULL AND ${sampled(Prisma.sql`t.id`, Prisma.sql`l.total`, cap)}
          GROUP BY 1
       ),
+      -- The k highest-priority alerts of each version and UTC day (windows are whole UTC days), read
+      -- from alerts_daily_priority_idx in the queue's order, k entries per (version, day).
       top_k AS (
-        SELECT mv AS "modelVersionId", day AS "dayFrom", count(*) AS considered,
-               count(*) FILTER (WHERE y = 1) AS fraud, count(*) FILTER (WHERE y IS NOT NULL) AS resolved
-          FROM (SELECT mv, y, date_bin('1 day', received_at, ${window.from}::timestamptz) AS day,
-                       row_number() OVER (PARTITION BY mv, date_bin('1 day', received_at, ${window.from}::timestamptz)
-                                          ORDER BY priority DESC NULLS LAST, received_at, id) AS rank
-                  FROM t WHERE NOT btl) r
-         WHERE rank <= ${k} GROUP BY 1, 2
+        SELECT m.mv AS "modelVersionId", (d.day::timestamp AT TIME ZONE 'UTC') AS "dayFrom", count(*) AS considered,
+               count(*) FILTER (WHERE ${topTruth} = 1) AS fraud, count(${topTruth}) AS resolved
+          FROM unnest(${ids}::uuid[]) AS m(mv)
+         CROSS JOIN unnest(${dayList}::date[]) AS d(day)
+         CROSS JOIN LATERAL (
+           SELECT x.id, x.final_outcome FROM alerts x
+            WHERE x.model_version_id = m.mv AND (x.received_at AT TIME ZONE 'UTC')::date = d.day AND NOT x.below_the_line
+            ORDER BY x.priority DESC NULLS LAST, x.received_at, x.id
+            LIMIT ${k}) top
+          LEFT JOIN ext ON ext.alert_id = top.id
+         GROUP BY 1, 2
       )
       SELECT (SELECT coalesce(json_agg(summaries), '[]') FROM summaries) AS summaries,
              (SELECT coalesce(json_agg(series), '[]') FROM series) AS series,
