@@ -2,9 +2,9 @@
 // counts at the top, and the alerts waiting for a second person.
 import { beforeAll, describe, expect, it } from "vitest";
 import { useTestDatabase } from "@/tests/support/test-database";
-import { createAlert, createModelVersion, createUser, type TestModelVersion } from "@/tests/support/factories";
+import { createAlert, createModelVersion, createUser, createWaitingAlerts, type TestModelVersion } from "@/tests/support/factories";
 import type { UserActor } from "@/lib/auth/actor";
-import { findWaitingAlerts, waitingAlertFilterSchema } from "@/lib/queue/find-waiting-alerts";
+import { findWaitingAlerts, WAITING_COUNT_CAP, waitingAlertFilterSchema } from "@/lib/queue/find-waiting-alerts";
 import { getQueueCounts } from "@/lib/queue/get-queue-counts";
 import { claimNextAlert } from "@/lib/queue/claim-next-alert";
 import { listSecondReviews } from "@/lib/outcomes/list-second-reviews";
@@ -104,5 +104,18 @@ describe("the counts and the second reviews", () => {
     expect(forInes).toEqual([expect.objectContaining({ externalId: "second", firstOutcome: "legitimate", firstReviewerName: "Ines Varga", exposureMinor: 300_000, ownFirstReview: true })]);
     expect((await listSecondReviews(prisma, { viewerId: tomasz.id }))[0].ownFirstReview).toBe(false);
     expect((await getQueueCounts(prisma, { now: NOW })).secondReview).toBe(1);
+  });
+});
+
+describe("a very long queue", () => {
+  it("counts matching alerts up to WAITING_COUNT_CAP and says when there are more", async () => {
+    const other = await createModelVersion(prisma, { modelName: "long-queue-gbm" });
+    await createWaitingAlerts(prisma, { modelVersionId: other.id, count: WAITING_COUNT_CAP + 5, receivedFrom: new Date("2026-11-01T00:00:00Z"), prefix: "long" });
+    const capped = await findWaitingAlerts(prisma, { now: NOW, filter: { modelVersionId: other.id } });
+    expect(capped).toMatchObject({ total: WAITING_COUNT_CAP, totalIsCapped: true });
+    expect(capped.alerts).toHaveLength(50);
+    // Below the cap the count is exact.
+    const exact = await findWaitingAlerts(prisma, { now: NOW, filter: { modelVersionId: other.id, amountMaxMinor: 10_000 + 20 } });
+    expect(exact).toMatchObject({ total: 20, totalIsCapped: false });
   });
 });

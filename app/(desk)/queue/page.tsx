@@ -72,6 +72,7 @@ export default async function QueuePage({ searchParams }: { searchParams: Promis
   const filtered = Boolean(filter.model || filter.channel || filter.min !== undefined || filter.max !== undefined || filter.overdue);
   const firstRow = (filter.page - 1) * QUEUE_PAGE_SIZE + 1;
   const lastPage = Math.max(1, Math.ceil(page.total / QUEUE_PAGE_SIZE));
+  const totalText = page.totalIsCapped ? `${page.total.toLocaleString("en")} or more` : page.total.toLocaleString("en");
   const reviewable = secondReviews.filter((item) => !item.ownFirstReview);
   const shortcuts: Shortcut[] = mayWork ? [{ keys: "t", label: "Take the next alert", action: { submit: TAKE_NEXT_FORM_ID } }] : [];
 
@@ -315,7 +316,7 @@ export default async function QueuePage({ searchParams }: { searchParams: Promis
             </div>
             <div className="flex flex-wrap items-center gap-4 text-sm">
               <p className="text-ink-soft">
-                {firstRow}–{firstRow + page.alerts.length - 1} of {page.total} waiting{filtered ? " that match" : ""}.{" "}
+                {firstRow}–{firstRow + page.alerts.length - 1} of {totalText} waiting{filtered ? " that match" : ""}.{" "}
                 <span className="text-attention">*</span> probability not calibrated yet.
               </p>
               <nav aria-label="Pages" className="ml-auto flex gap-3">
@@ -325,9 +326,10 @@ export default async function QueuePage({ searchParams }: { searchParams: Promis
                   </Link>
                 ) : null}
                 <span className="self-center text-ink-soft">
-                  Page {filter.page} of {lastPage}
+                  Page {filter.page} of {lastPage.toLocaleString("en")}
+                  {page.totalIsCapped ? "+" : ""}
                 </span>
-                {filter.page < lastPage ? (
+                {filter.page < lastPage || (page.totalIsCapped && page.alerts.length === QUEUE_PAGE_SIZE) ? (
                   <Link href={queryWith(params, { page: String(filter.page + 1) })} className="btn" rel="next">
                     Next page
                   </Link>
