@@ -69,7 +69,7 @@ async function benchIngest(context: Context): Promise<string> {
   const { modelVersion } = await saveModelVersion(prisma, { actor, input: BENCH_MODEL });
   const alerts = generateBenchAlerts(scale, now, { days: context.historyDays });
 
-  context.log(`ingest: ${scale.toLocaleString("en")} alerts through ingestAlerts in batches of ${INGEST_BATCH.toLocaleString("en")}…`);
+  context.log(`ingest: ${scale.toLocaleString("en")} alerts through ingestAlertBatches (pipelined) in batches of ${INGEST_BATCH.toLocaleString("en")}…`);
   // As `npm run ingest` sends a file: batches pipelined, each checked and priced while the one
   // before is being stored.
   let inserted = 0;
