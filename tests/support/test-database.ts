@@ -6,6 +6,7 @@ import pg from "pg";
 import { afterAll, beforeEach, inject } from "vitest";
 import { createDatabaseHandles } from "@/lib/db/client";
 import type { PrismaClient } from "@/lib/generated/prisma/client";
+import { backgroundLinkingSettled } from "@/lib/audit/staged-audit-events";
 
 export interface TestDatabase {
   name: string;
@@ -43,6 +44,9 @@ export async function useTestDatabase(): Promise<TestDatabase> {
     });
   });
   afterAll(async () => {
+    // Claims link their staged audit events in the background: let that finish before the
+    // connections close, or it fails against a closed pool (and says so in the test output).
+    await backgroundLinkingSettled();
     await prisma.$disconnect();
     await pool.end();
     if (failed && process.env.KEEP_TEST_DATABASES) {
