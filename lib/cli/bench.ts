@@ -217,7 +217,9 @@ const CLOSED_SHARE = 0.8;
 /**
  * Closes CLOSED_SHARE of the waiting alerts set-based, the way a team's history looks: a first-review
  * outcome by one of the analysts (fraud with the alert's probability), closed within a day of
- * arrival, and a chargeback for one in twelve of them.
+ * arrival, and a chargeback for one in twelve of them. Outcomes and labels are written in the order
+ * they would have been recorded (by close and by report), so the tables lie on disk as a real
+ * history's would: a window's outcomes together, not scattered over the whole table.
  */
 async function closeHistory(context: Context, reviewerIds: string[]): Promise<number> {
   const { pool, now } = context;
@@ -241,13 +243,15 @@ async function closeHistory(context: Context, reviewerIds: string[]): Promise<nu
     await client.query(
       `INSERT INTO outcomes (alert_id, review_round, outcome, reason, reviewer_id, claimed_at, closed_at, handling_seconds, origin)
        SELECT id, 1, final_outcome, 'Benchmark history', assigned_to_id, claimed_at, closed_at, extract(epoch FROM closed_at - claimed_at)::int, 'imported'
-         FROM alerts WHERE state = 'closed'`,
+         FROM alerts WHERE state = 'closed'
+        ORDER BY closed_at`,
     );
     await client.query(
       `INSERT INTO labels (alert_external_id, alert_id, label, source, observed_at, received_at, reference)
        SELECT external_id, id, CASE WHEN final_outcome = 'legitimate' THEN 'genuine' ELSE 'fraud' END, 'chargeback',
               occurred_at + interval '5 days', occurred_at + interval '7 days', 'CB-' || external_id
-         FROM alerts WHERE state = 'closed' AND abs(hashtext(external_id || 'l')) % 12 = 0 AND occurred_at + interval '7 days' <= $1`,
+         FROM alerts WHERE state = 'closed' AND abs(hashtext(external_id || 'l')) % 12 = 0 AND occurred_at + interval '7 days' <= $1
+        ORDER BY occurred_at`,
       [now],
     );
     await client.query("COMMIT");
