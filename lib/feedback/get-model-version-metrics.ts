@@ -60,21 +60,6 @@ interface VersionRow {
   active: boolean;
 }
 
-/** One kind of alert of a version's window, as the statement counts them. */
-interface SummaryGroupRow {
-  modelVersionId: string;
-  belowTheLine: boolean;
-  closed: boolean;
-  finalOutcome: string | null;
-  label: string | null;
-  y: number | null;
-  calibrated: boolean;
-  hasProbability: boolean;
-  alerts: number;
-  brierSum: number | null;
-  weight: number | null;
-}
-
 interface SummaryRow {
   modelVersionId: string;
   belowTheLine: boolean;
@@ -127,7 +112,7 @@ interface PrecisionAtKRow {
 
 /** What the main statement returns: one row of JSON arrays, one per aggregation. */
 interface WindowAggregates {
-  summaries: SummaryGroupRow[];
+  summaries: SummaryRow[];
   series: SeriesRow[];
   bins: BinRow[];
   scoreLists: ScoreListRow[];
@@ -149,51 +134,6 @@ interface DriftRow {
  */
 function sampled(id: Prisma.Sql, total: Prisma.Sql, cap: number): Prisma.Sql {
   return Prisma.sql`(${total} <= ${cap} OR (hashtextextended(${id}::text, 0) & 1048575) < 1048576::float8 * ${cap} / ${total})`;
-}
-
-/** A sum that stays null until a group brings a value, as SQL's sum over no values is null. */
-function plus(total: number | null, value: number | null): number | null {
-  return value === null ? total : (total ?? 0) + value;
-}
-
-/**
- * The window's numbers of one version (alerted range or below-the-line samples) from its groups,
- * or undefined when it has none. Definitions as in DESIGN.md §4 and lib/feedback/ground-truth-sql.ts:
- * truth and calibration count closed alerts only; an overturn is a closed alert whose external label
- * says the opposite of its outcome.
- */
-function summaryOf(groups: SummaryGroupRow[]): Omit<SummaryRow, "modelVersionId" | "belowTheLine"> | undefined {
-  if (groups.length === 0) return undefined;
-  const summary: Omit<SummaryRow, "modelVersionId" | "belowTheLine"> = {
-    received: 0, closed: 0, mixFraud: 0, mixLegitimate: 0, mixInconclusive: 0, truthFraud: 0, truthLegitimate: 0,
-    truthUnknown: 0, overturned: 0, calibrationAlerts: 0, calibratedAlerts: 0, brierSum: null, weightAll: null,
-    weightResolved: null, weightFraud: null,
-  };
-  for (const group of groups) {
-    const n = group.alerts;
-    summary.received += n;
-    summary.weightAll = plus(summary.weightAll, group.weight);
-    if (group.finalOutcome === "confirmed_fraud") summary.mixFraud += n;
-    if (group.finalOutcome === "legitimate") summary.mixLegitimate += n;
-    if (group.finalOutcome === "inconclusive") summary.mixInconclusive += n;
-    if (!group.closed) continue;
-    summary.closed += n;
-    if (group.y === 1) summary.truthFraud += n;
-    else if (group.y === 0) summary.truthLegitimate += n;
-    else summary.truthUnknown += n;
-    if ((group.label === "fraud" && group.finalOutcome === "legitimate") || (group.label === "genuine" && group.finalOutcome === "confirmed_fraud")) {
-      summary.overturned += n;
-    }
-    if (group.y === null) continue;
-    if (group.hasProbability) {
-      summary.calibrationAlerts += n;
-      if (group.calibrated) summary.calibratedAlerts += n;
-    }
-    summary.brierSum = plus(summary.brierSum, group.brierSum);
-    summary.weightResolved = plus(summary.weightResolved, group.weight);
-    if (group.y === 1) summary.weightFraud = plus(summary.weightFraud, group.weight);
-  }
-  return summary;
 }
 
 function weighted(successes: number, trials: number, alerts: number) {
@@ -269,14 +209,25 @@ export async function getModelVersionMetrics(db: DbOrTx, options: GetModelVersio
           FROM a
           LEFT JOIN ext ON ext.alert_id = a.id
       ),
-      -- A few dozen groups per version instead of sixteen FILTERed aggregates over every row: the
-      -- kinds of alert (closed or not, outcome, label, calibrated, with a probability) are counted
-      -- here and folded into the summary in summaryOf (half the time of this part at 90,000 alerts).
       summaries AS (
-        SELECT mv AS "modelVersionId", btl AS "belowTheLine", closed, final_outcome AS "finalOutcome", label, y,
-               calibrated, p IS NOT NULL AS "hasProbability", count(*) AS alerts,
-               sum((p - y) ^ 2) AS "brierSum", sum(1 / pi) AS weight
-          FROM t GROUP BY 1, 2, 3, 4, 5, 6, 7, 8
+        SELECT mv AS "modelVersionId", btl AS "belowTheLine",
+               count(*) AS received,
+               count(*) FILTER (WHERE closed) AS closed,
+               count(*) FILTER (WHERE final_outcome = 'confirmed_fraud') AS "mixFraud",
+               count(*) FILTER (WHERE final_outcome = 'legitimate') AS "mixLegitimate",
+               count(*) FILTER (WHERE final_outcome = 'inconclusive') AS "mixInconclusive",
+               count(*) FILTER (WHERE closed AND y = 1) AS "truthFraud",
+               count(*) FILTER (WHERE closed AND y = 0) AS "truthLegitimate",
+               count(*) FILTER (WHERE closed AND y IS NULL) AS "truthUnknown",
+               count(*) FILTER (WHERE closed AND ((label = 'fraud' AND final_outcome = 'legitimate')
+                                               OR (label = 'genuine' AND final_outcome = 'confirmed_fraud'))) AS overturned,
+               count(*) FILTER (WHERE closed AND y IS NOT NULL AND p IS NOT NULL) AS "calibrationAlerts",
+               count(*) FILTER (WHERE closed AND y IS NOT NULL AND p IS NOT NULL AND calibrated) AS "calibratedAlerts",
+               sum((p - y) ^ 2) FILTER (WHERE closed AND y IS NOT NULL) AS "brierSum",
+               sum(1 / pi) AS "weightAll",
+               sum(1 / pi) FILTER (WHERE closed AND y IS NOT NULL) AS "weightResolved",
+               sum(1 / pi) FILTER (WHERE closed AND y = 1) AS "weightFraud"
+          FROM t GROUP BY mv, btl
       ),
       series AS (
         SELECT mv AS "modelVersionId", date_bin(${step}::interval, received_at, ${window.from}::timestamptz) AS "bucketFrom",
@@ -345,8 +296,8 @@ export async function getModelVersionMetrics(db: DbOrTx, options: GetModelVersio
 
   const modelVersions: ModelVersionMetrics[] = versions.map((version) => {
     const mine = <T extends { modelVersionId: string }>(rows: T[]) => rows.filter((row) => row.modelVersionId === version.id);
-    const alerted = summaryOf(summaries.filter((row) => row.modelVersionId === version.id && !row.belowTheLine));
-    const below = summaryOf(summaries.filter((row) => row.modelVersionId === version.id && row.belowTheLine));
+    const alerted = summaries.find((row) => row.modelVersionId === version.id && !row.belowTheLine);
+    const below = summaries.find((row) => row.modelVersionId === version.id && row.belowTheLine);
 
     const precision = realizedPrecision({
       confirmedFraud: alerted?.truthFraud ?? 0,
