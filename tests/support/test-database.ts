@@ -31,6 +31,27 @@ async function adminQuery(sql: string): Promise<void> {
   }
 }
 
+/**
+ * Drops a test file's database once its connections have closed. Prisma's $disconnect can return
+ * while its pool's last connection is still saying goodbye; dropping WITH (FORCE) at that moment
+ * kills it, and the dying connection's error surfaced as an uncaught exception in whichever test
+ * file ran it (seen once in CI, from tests/audit/concurrent-appends). So: wait up to two seconds for
+ * the database to be free, and force only after that.
+ */
+async function dropDatabase(name: string): Promise<void> {
+  for (let attempt = 0; attempt < 20; attempt++) {
+    try {
+      await adminQuery(`DROP DATABASE IF EXISTS ${name}`);
+      return;
+    } catch (error) {
+      // 55006 object_in_use: some connection is still open.
+      if ((error as { code?: string }).code !== "55006") throw error;
+      await new Promise((resolve) => setTimeout(resolve, 100));
+    }
+  }
+  await adminQuery(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`);
+}
+
 /** Call at the top level of a test file; the database is dropped after the file's tests. */
 export async function useTestDatabase(): Promise<TestDatabase> {
   const name = `t_${randomBytes(6).toString("hex")}`;
@@ -53,7 +74,7 @@ export async function useTestDatabase(): Promise<TestDatabase> {
       console.log(`kept test database ${name} (${url})`);
       return;
     }
-    await adminQuery(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`);
+    await dropDatabase(name);
   });
   return { name, url, prisma, pool };
 }
