@@ -1,6 +1,7 @@
 // How old the open alerts are, hour by hour, with the ones past their due time apart.
 import { scaleBand, scaleLinear } from "d3-scale";
-import { BottomBandAxis, defaultFrame, formatCount, innerHeight, innerWidth, LeftAxis, LegendItem } from "@/app/components/charts/workload-axes";
+import { plotHeight, plotWidth, ValueAxis } from "@/app/components/charts/chart-parts";
+import { BottomBandAxis, defaultFrame, formatCount, LegendItem } from "@/app/components/charts/workload-axes";
 
 export interface AgeBin {
   fromHours: number;
@@ -11,8 +12,8 @@ export interface AgeBin {
 
 export function AgeChart({ bins }: { bins: AgeBin[] }) {
   const frame = defaultFrame;
-  const width = innerWidth(frame);
-  const height = innerHeight(frame);
+  const width = plotWidth(frame);
+  const height = plotHeight(frame);
   const key = (bin: AgeBin) => String(bin.fromHours);
   const x = scaleBand<string>().domain(bins.map(key)).range([0, width]).paddingInner(0.15);
   const top = Math.max(1, ...bins.map((bin) => bin.notOverdue + bin.overdue));
@@ -26,7 +27,7 @@ export function AgeChart({ bins }: { bins: AgeBin[] }) {
     <figure className="space-y-1">
       <svg viewBox={`0 0 ${frame.width} ${frame.height}`} className="h-auto w-full" role="img" aria-label={`Age of the ${open} open alerts by hour; ${overdue} are past their due time.`}>
         <g transform={`translate(${frame.margin.left},${frame.margin.top})`}>
-          <LeftAxis scale={y} frame={frame} format={formatCount} label="open alerts" />
+          <ValueAxis scale={y} frame={frame} format={formatCount} label="open alerts" />
           {bins.map((bin) => {
             const left = x(key(bin)) ?? 0;
             const label = bin.toHours === null ? `${bin.fromHours} h or older` : `${bin.fromHours}–${bin.toHours} h`;

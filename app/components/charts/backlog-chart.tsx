@@ -1,6 +1,7 @@
 // Arrived versus closed alerts per day, with the open backlog at each day's end: is the desk keeping up?
 import { scaleBand, scaleLinear } from "d3-scale";
-import { BottomBandAxis, defaultFrame, formatCount, innerHeight, innerWidth, LeftAxis, LegendItem } from "@/app/components/charts/workload-axes";
+import { plotHeight, plotWidth, ValueAxis } from "@/app/components/charts/chart-parts";
+import { BottomBandAxis, defaultFrame, formatCount, LegendItem } from "@/app/components/charts/workload-axes";
 
 export interface BacklogDay {
   day: string;
@@ -11,8 +12,8 @@ export interface BacklogDay {
 
 export function BacklogChart({ history }: { history: BacklogDay[] }) {
   const frame = defaultFrame;
-  const width = innerWidth(frame);
-  const height = innerHeight(frame);
+  const width = plotWidth(frame);
+  const height = plotHeight(frame);
   const x = scaleBand<string>()
     .domain(history.map((entry) => entry.day))
     .range([0, width])
@@ -36,7 +37,7 @@ export function BacklogChart({ history }: { history: BacklogDay[] }) {
         aria-label={`Alerts arrived and closed per day over ${history.length} days: ${totals.arrived} arrived, ${totals.closed} closed; ${last?.openAtEnd ?? 0} open now.`}
       >
         <g transform={`translate(${frame.margin.left},${frame.margin.top})`}>
-          <LeftAxis scale={y} frame={frame} format={formatCount} label="alerts" />
+          <ValueAxis scale={y} frame={frame} format={formatCount} label="alerts" />
           {history.map((entry) => (
             <g key={entry.day} transform={`translate(${x(entry.day) ?? 0},0)`}>
               <rect x={0} y={y(entry.arrived)} width={bar} height={height - y(entry.arrived)} className="fill-accent">

@@ -1,7 +1,8 @@
 // Expected loss caught a day against review capacity for one model version: with the threshold set for
 // each capacity, and today's queue worked by expected loss or by score.
 import { scaleLinear } from "d3-scale";
-import { BottomLinearAxis, defaultFrame, formatCount, innerHeight, innerWidth, LeftAxis, LegendItem } from "@/app/components/charts/workload-axes";
+import { LinearAxis, plotHeight, plotWidth, ValueAxis } from "@/app/components/charts/chart-parts";
+import { defaultFrame, formatCount, LegendItem } from "@/app/components/charts/workload-axes";
 
 export interface CapacityCurvePoint {
   capacityPerDay: number;
@@ -39,8 +40,8 @@ export function CapacityChart({
   title: string;
 }) {
   const frame = { ...defaultFrame, height: 240 };
-  const width = innerWidth(frame);
-  const height = innerHeight(frame);
+  const width = plotWidth(frame);
+  const height = plotHeight(frame);
   const maxCapacity = Math.max(1, ...curve.map((point) => point.capacityPerDay));
   const x = scaleLinear().domain([0, maxCapacity]).range([0, width]);
   const top = Math.max(1, ...curve.map((point) => Math.max(point.thresholdForCapacityMinor, point.queueByExpectedLossMinor, point.queueByScoreMinor)));
@@ -66,13 +67,13 @@ export function CapacityChart({
         aria-label={`${title}: expected loss caught a day against capacity.${atK ? ` At ${capacityPerDay} a day: ${compactMoney(atK.queueByExpectedLossMinor, currency)} working today's queue by expected loss, ${compactMoney(atK.queueByScoreMinor, currency)} by score.` : ""}`}
       >
         <g transform={`translate(${frame.margin.left},${frame.margin.top + 6})`}>
-          <LeftAxis scale={y} frame={{ ...frame, height: frame.height - 6 }} format={(value) => compactMoney(value, currency)} label={`expected loss caught a day (${currency})`} />
+          <ValueAxis scale={y} frame={{ ...frame, height: frame.height - 6 }} format={(value) => compactMoney(value, currency)} label={`expected loss caught a day (${currency})`} />
           <path d={path((point) => point.queueByScoreMinor)} fill="none" strokeWidth={1.5} className="stroke-ink-faint" />
           <path d={path((point) => point.queueByExpectedLossMinor)} fill="none" strokeWidth={2} strokeDasharray="5 3" className="stroke-attention" />
           <path d={path((point) => point.thresholdForCapacityMinor)} fill="none" strokeWidth={2} className="stroke-accent" />
           {marker(queuePerDay, `alerts today ${formatCount(Math.round(queuePerDay))}`, "stroke-ink-faint")}
           {marker(capacityPerDay, `K ${formatCount(capacityPerDay)}`, "stroke-ink")}
-          <BottomLinearAxis scale={x} frame={{ ...frame, height: frame.height - 6 }} format={formatCount} label="review capacity (alerts a day)" />
+          <LinearAxis scale={x} frame={{ ...frame, height: frame.height - 6 }} format={formatCount} label="review capacity (alerts a day)" />
         </g>
       </svg>
       <figcaption className="flex flex-wrap items-center gap-x-4 gap-y-1 text-xs text-ink-soft">

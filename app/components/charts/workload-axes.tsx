@@ -1,65 +1,17 @@
-// Axes for the small SVG charts of the Workload and Capacity planner screens, drawn on the server from
-// d3-scale scales. Text uses the page's ink colours; lines stay thin so the data carries the weight.
-import type { ScaleBand, ScaleLinear } from "d3-scale";
+// Band axis, legend and frame for the small SVG charts of the Workload and Capacity planner screens,
+// drawn on the server from d3-scale scales. Text uses the page's ink colours; lines stay thin so the data carries the weight.
+import type { ScaleBand } from "d3-scale";
+import { plotHeight, plotWidth, type Frame } from "@/app/components/charts/chart-parts";
 
-export interface ChartFrame {
-  width: number;
-  height: number;
-  margin: { top: number; right: number; bottom: number; left: number };
-}
-
-export const defaultFrame: ChartFrame = { width: 680, height: 230, margin: { top: 14, right: 20, bottom: 40, left: 64 } };
-
-export const innerWidth = (frame: ChartFrame) => frame.width - frame.margin.left - frame.margin.right;
-export const innerHeight = (frame: ChartFrame) => frame.height - frame.margin.top - frame.margin.bottom;
-
-/** Vertical value axis on the left with light grid lines across the plot. */
-export function LeftAxis({ scale, frame, format, label, ticks = 5 }: { scale: ScaleLinear<number, number>; frame: ChartFrame; format: (value: number) => string; label: string; ticks?: number }) {
-  const width = innerWidth(frame);
-  return (
-    <g aria-hidden>
-      {scale.ticks(ticks).map((tick) => (
-        <g key={tick} transform={`translate(0,${scale(tick)})`}>
-          <line x1={0} x2={width} className="stroke-rule" strokeWidth={tick === 0 ? 1 : 0.5} />
-          <text x={-6} dy="0.32em" textAnchor="end" className="fill-ink-soft text-[10px]">
-            {format(tick)}
-          </text>
-        </g>
-      ))}
-      <text transform={`translate(${-frame.margin.left + 12},${innerHeight(frame) / 2}) rotate(-90)`} textAnchor="middle" className="fill-ink-soft text-[10px]">
-        {label}
-      </text>
-    </g>
-  );
-}
-
-/** Horizontal axis for a linear scale along the bottom. */
-export function BottomLinearAxis({ scale, frame, format, label, ticks = 6 }: { scale: ScaleLinear<number, number>; frame: ChartFrame; format: (value: number) => string; label: string; ticks?: number }) {
-  const height = innerHeight(frame);
-  return (
-    <g aria-hidden transform={`translate(0,${height})`}>
-      <line x1={0} x2={innerWidth(frame)} className="stroke-ink-faint" strokeWidth={1} />
-      {scale.ticks(ticks).map((tick) => (
-        <g key={tick} transform={`translate(${scale(tick)},0)`}>
-          <line y2={4} className="stroke-ink-faint" />
-          <text y={15} textAnchor="middle" className="fill-ink-soft text-[10px]">
-            {format(tick)}
-          </text>
-        </g>
-      ))}
-      <text x={innerWidth(frame) / 2} y={32} textAnchor="middle" className="fill-ink-soft text-[10px]">
-        {label}
-      </text>
-    </g>
-  );
-}
+// The frame and the value and linear axes are those of the metric charts (chart-parts.tsx).
+export const defaultFrame: Frame = { width: 680, height: 230, margin: { top: 14, right: 20, bottom: 40, left: 64 } };
 
 /** Horizontal axis for a band scale; `labelEvery` thins the labels when bands are narrow. */
-export function BottomBandAxis({ scale, frame, format, label, labelEvery = 1 }: { scale: ScaleBand<string>; frame: ChartFrame; format: (value: string) => string; label: string; labelEvery?: number }) {
-  const height = innerHeight(frame);
+export function BottomBandAxis({ scale, frame, format, label, labelEvery = 1 }: { scale: ScaleBand<string>; frame: Frame; format: (value: string) => string; label: string; labelEvery?: number }) {
+  const height = plotHeight(frame);
   return (
     <g aria-hidden transform={`translate(0,${height})`}>
-      <line x1={0} x2={innerWidth(frame)} className="stroke-ink-faint" strokeWidth={1} />
+      <line x1={0} x2={plotWidth(frame)} className="stroke-ink-faint" strokeWidth={1} />
       {scale.domain().map((value, index) =>
         index % labelEvery === 0 ? (
           <g key={value} transform={`translate(${(scale(value) ?? 0) + scale.bandwidth() / 2},0)`}>
@@ -70,7 +22,7 @@ export function BottomBandAxis({ scale, frame, format, label, labelEvery = 1 }: 
           </g>
         ) : null,
       )}
-      <text x={innerWidth(frame) / 2} y={32} textAnchor="middle" className="fill-ink-soft text-[10px]">
+      <text x={plotWidth(frame) / 2} y={32} textAnchor="middle" className="fill-ink-soft text-[10px]">
         {label}
       </text>
     </g>
