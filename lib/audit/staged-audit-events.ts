@@ -14,6 +14,7 @@
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
 import { inTransaction } from "@/lib/db/in-transaction";
+import type { HashedAuditFields } from "@/lib/audit/audit-hash";
 import { appendToChain, lockChainHead, parseAuditEvent, type RecordAuditEventOptions } from "@/lib/audit/record-audit-event";
 
 /** Events linked per transaction: bounds the lock's hold and the memory of one run. */
@@ -28,19 +29,6 @@ export async function stageAuditEvent(tx: Prisma.TransactionClient, options: Omi
             ${options.context?.ipAddress ?? null})`;
 }
 
-interface StagedRow {
-  occurredAt: Date;
-  actorType: string;
-  actorId: string | null;
-  actorLabel: string;
-  action: string;
-  subjectType: string | null;
-  subjectId: string | null;
-  payload: unknown;
-  requestId: string | null;
-  ipAddress: string | null;
-}
-
 /**
  * Links every event staged so far into the chain; returns how many. Waits for the chain's lock:
  * whoever holds it (a direct append, another linker) commits within milliseconds.
@@ -48,14 +36,15 @@ interface StagedRow {
 export async function linkStagedAuditEvents(db: DbOrTx): Promise<number> {
   let linked = 0;
   for (;;) {
+    // The usual answer is "nothing staged": find that out with one probe, before any transaction
+    // or lock (every view of the trail and of an alert's history starts here).
+    const [{ any }] = await db.$queryRaw<{ any: boolean }[]>`SELECT EXISTS (SELECT 1 FROM audit_events_staged) AS any`;
+    if (!any) return linked;
     const moved = await inTransaction(db, async (tx) => {
-      // Cheap probe first, without the lock: the usual answer is "nothing staged".
-      const [{ any }] = await tx.$queryRaw<{ any: boolean }[]>`SELECT EXISTS (SELECT 1 FROM audit_events_staged) AS any`;
-      if (!any) return 0;
       const head = await lockChainHead(tx);
       // Under the lock only linkers delete here, so these rows cannot be taken twice. The payload
       // is hashed as jsonb gives it back, exactly as verify will read it.
-      const rows = await tx.$queryRaw<StagedRow[]>`
+      const rows = await tx.$queryRaw<HashedAuditFields[]>`
         WITH taken AS (
           DELETE FROM audit_events_staged
            WHERE id IN (SELECT id FROM audit_events_staged ORDER BY id LIMIT ${LINK_BATCH})
