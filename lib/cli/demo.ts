@@ -87,9 +87,12 @@ await runCommand(async () => {
     }
 
     app = spawn(path.join(root, "node_modules", ".bin", "next"), ["start", "-p", String(port)], { stdio: ["ignore", "pipe", "inherit"], env });
+    // Next writes "Local:" and "Ready" in separate chunks: say where the app is once.
+    let announced = false;
     app.stdout?.on("data", (chunk: Buffer) => {
       const text = chunk.toString();
-      if (/ready|started|Local:/i.test(text)) {
+      if (!announced && /ready|started|Local:/i.test(text)) {
+        announced = true;
         console.log("");
         console.log(`Triage Desk (${DEMO_INSTITUTION}, invented demo data) is running at http://localhost:${port}`);
         console.log(`Demo sign-ins, password "${DEMO_PASSWORD}" (for local evaluation only):`);
