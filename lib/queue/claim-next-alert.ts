@@ -6,7 +6,7 @@
 // column, so the candidate is the first entry of the index that no other claim has locked: no sort,
 // no filter, however many alerts wait, and a waiting alert leaves the index the moment it is claimed.
 // "Overdue" is a stored mark (past_due) because a predicate on the clock cannot be indexed; the
-// sweep markOverdueAlerts runs just before, so the mark is exact at `now`.
+// sweep (MARK_OVERDUE_SQL) runs just before the claim, in the same message, so the mark is exact at `now`.
 //
 // EXPLAIN (ANALYZE) of the claim on 200,000 waiting + 200,000 closed alerts, with 1% or 60% of the
 // waiting ones overdue, random or the lowest-priority ones: the same plan in all four cases, under
@@ -28,8 +28,8 @@
 //   - the claim runs on `pg` directly, not through Prisma: with sixteen claimers in one Node
 //     process, Prisma's per-query work (about 0.3 ms of CPU each, eight queries a claim) was the
 //     queue they all stood in — 250 claims/s against 1,800 for the bare statement (npm run bench);
-//   - two round trips in all: housekeeping with the settings, then the claim as one message
-//     (claimMessage below) instead of an interactive transaction of five.
+//   - one round trip in all: the overdue sweep, the settings and the claim travel as one message
+//     (claimMessage below) instead of an interactive transaction of five statements.
 import "server-only";
 import pg from "pg";
 import type { PrismaClient } from "@/lib/generated/prisma/client";
@@ -37,9 +37,9 @@ import type { Actor } from "@/lib/auth/actor";
 import { auditActorOf } from "@/lib/auth/actor";
 import type { AuditContext } from "@/lib/audit/schemas";
 import { linkStagedAuditEventsSoon } from "@/lib/audit/staged-audit-events";
-import { settingsGroupOf } from "@/lib/settings/get-settings";
+import { defaultSettings } from "@/lib/settings/schemas";
 import { expireLeases } from "@/lib/queue/expire-leases";
-import { MARK_BATCH, MARK_OVERDUE_SQL, markOverdueAlerts } from "@/lib/queue/mark-overdue-alerts";
+import { MARK_OVERDUE_SQL, markOverdueAlerts } from "@/lib/queue/mark-overdue-alerts";
 import { QUEUE_ORDER_BY } from "@/lib/queue/list-waiting-alerts";
 import { holdLimitReached } from "@/lib/queue/hold-limit";
 import { assertMayWorkAlerts, QUEUE_LOCK_CLASS } from "@/lib/queue/queue-actor";
@@ -59,69 +59,87 @@ export interface ClaimDatabases {
   pool: pg.Pool;
 }
 
-// One round trip before the transaction: mark what fell due, say whether any lease ran out, and
-// read the queue settings (per claim: a change takes effect for the very next claim).
-const PREPARE_SQL = `
-  WITH marked AS (${MARK_OVERDUE_SQL})
-  SELECT (SELECT count(*) FROM marked)::int AS marked,
-         EXISTS (SELECT 1 FROM alerts WHERE state = 'in_review' AND lease_expires_at <= $1) AS "leasesExpired",
-         (SELECT value FROM settings WHERE key = 'queue') AS queue`;
-
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 function literal(value: string | null): string {
   return value === null ? "NULL" : pg.escapeLiteral(value);
 }
 
+/** A queue setting read in SQL, falling back to the default when the stored group lacks it (settingsGroupOf's rule for a whole group). */
+function queueSettingSql(key: "maxHeldPerAnalyst" | "claimLeaseMinutes"): string {
+  const fallback = defaultSettings.queue[key];
+  if (!Number.isSafeInteger(fallback)) throw new AppError("invalid_input", `claim: the default ${key} is not a whole number`);
+  return `coalesce((SELECT CASE WHEN jsonb_typeof(value->'${key}') = 'number' THEN (value->>'${key}')::int END
+                      FROM settings WHERE key = 'queue'), ${fallback})`;
+}
+
 /**
- * The claim as one message of two statements, which PostgreSQL runs as one implicit transaction:
- * the analyst's hold lock (the same key as HOLD_LOCK_SQL), then — with a snapshot taken after the
- * lock, so another tab's claim that just committed is counted — the held count, the claim if below
- * the limit, and its staged audit event (the alert.claimed event of lib/audit/schemas.ts;
- * tests/audit/staged-audit-events.integration.test.ts checks it parses). One round trip instead of
- * BEGIN, lock, count, claim and COMMIT. A message of several statements cannot carry parameters, so
- * the values are written as literals: the user id checked as a UUID, numbers from the parsed
- * settings, text through pg's escapeLiteral.
+ * The whole claim as one message of three statements, which PostgreSQL runs as one implicit
+ * transaction, in one round trip:
+ *   1. the overdue sweep (MARK_OVERDUE_SQL: one probe of its partial index when nothing fell due);
+ *   2. the analyst's hold lock (the same key as HOLD_LOCK_SQL);
+ *   3. with a snapshot taken after the lock (so another tab's claim that just committed is counted):
+ *      the queue settings, the held count, the claim if below the limit, and its staged audit
+ *      event (the alert.claimed event of lib/audit/schemas.ts; tests/audit/staged-audit-events.integration.test.ts
+ *      checks it parses).
+ * The claim stands aside (`housekeepingDue`) when a lease has run out or a due alert is still
+ * unmarked (more fell due than one sweep marks, or another claimer holds it): the caller then does
+ * that housekeeping through the domain functions and sends the message again, so the order stays
+ * exact at `now`. Settings are read per claim, so a change applies to the very next one.
+ * A message of several statements cannot carry parameters, so values are written as literals: the
+ * user id checked as a UUID, numbers checked as whole numbers, text through pg's escapeLiteral.
  */
 function claimMessage(values: {
   userId: string;
-  maxHeld: number;
   now: Date;
-  leaseExpiresAt: Date;
+  /** Claim even when housekeeping is due (the second attempt, after doing it). */
+  afterHousekeeping: boolean;
   actorType: string;
   actorLabel: string;
   requestId: string | null;
   ipAddress: string | null;
 }): string {
   if (!UUID.test(values.userId)) throw new AppError("invalid_input", "claim: the user id is not a UUID");
-  if (!Number.isSafeInteger(values.maxHeld)) throw new AppError("invalid_input", "claim: the hold limit is not a whole number");
   const user = literal(values.userId);
-  const leaseExpiresAt = literal(values.leaseExpiresAt.toISOString());
+  const now = `${literal(values.now.toISOString())}::timestamptz`;
+  const housekeepingDue = `(EXISTS (SELECT 1 FROM alerts WHERE state = 'in_review' AND lease_expires_at <= ${now})
+                         OR EXISTS (SELECT 1 FROM alerts WHERE state = 'waiting' AND NOT past_due AND due_at <= ${now}))`;
   return `
+    ${MARK_OVERDUE_SQL.replaceAll("$1", now)};
     SELECT pg_advisory_xact_lock(${QUEUE_LOCK_CLASS}::int, hashtext(${user}::text));
-    WITH held AS (
+    WITH settings_now AS (
+      SELECT ${queueSettingSql("maxHeldPerAnalyst")} AS max_held,
+             ${now} + make_interval(mins => ${queueSettingSql("claimLeaseMinutes")}) AS lease_expires_at,
+             ${values.afterHousekeeping ? "false" : housekeepingDue} AS housekeeping_due),
+    held AS (
       SELECT count(*)::int AS n FROM alerts WHERE assigned_to_id = ${user}::uuid AND state = 'in_review'),
     next AS (
       SELECT a.id FROM alerts a
-       WHERE a.state = 'waiting' AND (SELECT n FROM held) < ${values.maxHeld}
+       WHERE a.state = 'waiting' AND (SELECT n FROM held) < (SELECT max_held FROM settings_now)
+         AND NOT (SELECT housekeeping_due FROM settings_now)
        ORDER BY ${QUEUE_ORDER_BY.sql}
        LIMIT 1
          FOR UPDATE SKIP LOCKED),
     claimed AS (
       UPDATE alerts a
-         SET state = 'in_review', assigned_to_id = ${user}::uuid, claimed_at = ${literal(values.now.toISOString())}::timestamptz,
-             lease_expires_at = ${leaseExpiresAt}::timestamptz
+         SET state = 'in_review', assigned_to_id = ${user}::uuid, claimed_at = ${now},
+             lease_expires_at = (SELECT lease_expires_at FROM settings_now)
         FROM next
        WHERE a.id = next.id
       RETURNING ${CLAIMED_ALERT_COLUMNS.sql}),
     staged AS (
       INSERT INTO audit_events_staged (actor_type, actor_id, actor_label, action, subject_type, subject_id, payload, request_id, ip_address)
       SELECT ${literal(values.actorType)}, ${user}, ${literal(values.actorLabel)}, 'alert.claimed', 'alert', c.id::text,
-             jsonb_build_object('alertId', c.id::text, 'externalId', c."externalId", 'leaseExpiresAt', ${leaseExpiresAt}::text, 'how', 'take_next'),
+             jsonb_build_object('alertId', c.id::text, 'externalId', c."externalId",
+                                'leaseExpiresAt', to_char(c."leaseExpiresAt" AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"'),
+                                'how', 'take_next'),
              ${literal(values.requestId)}, ${literal(values.ipAddress)}
         FROM claimed c)
-    SELECT (SELECT n FROM held) AS held, c.* FROM (SELECT 1) AS one LEFT JOIN claimed c ON true`;
+    SELECT (SELECT n FROM held) AS held, s.max_held AS "maxHeld", s.housekeeping_due AS "housekeepingDue", c.*
+      FROM settings_now s LEFT JOIN claimed c ON true`;
 }
+
+type ClaimAnswer = ClaimedAlertRow & { held: number; maxHeld: number; housekeepingDue: boolean; id: string | null };
 
 /** The claimed alert, or null when no alert is waiting (or every waiting one is being claimed). */
 export async function claimNextAlert(databases: ClaimDatabases, options: ClaimNextAlertOptions): Promise<ClaimedAlert | null> {
@@ -129,30 +147,32 @@ export async function claimNextAlert(databases: ClaimDatabases, options: ClaimNe
   assertMayWorkAlerts(actor);
   const { prisma, pool } = databases;
 
-  const [prepared] = (await pool.query<{ marked: number; leasesExpired: boolean; queue: unknown }>(PREPARE_SQL, [now])).rows;
-  // Expired leases go back to the queue first, audited one by one (rare: through the domain function).
-  if (prepared.leasesExpired) await expireLeases(prisma, { now, context: options.context });
-  // More fell due than one statement marks (after a quiet night), or leases returned alerts.
-  if (prepared.leasesExpired || prepared.marked >= MARK_BATCH) await markOverdueAlerts(prisma, { now });
-  const queue = settingsGroupOf("queue", prepared.queue ?? undefined);
-  const leaseExpiresAt = new Date(now.getTime() + queue.claimLeaseMinutes * 60_000);
   const auditActor = auditActorOf(actor);
-
-  const results = (await pool.query(
-    claimMessage({
+  const send = async (afterHousekeeping: boolean): Promise<ClaimAnswer> => {
+    const message = claimMessage({
       userId: actor.id,
-      maxHeld: queue.maxHeldPerAnalyst,
       now,
-      leaseExpiresAt,
+      afterHousekeeping,
       actorType: auditActor.type,
       actorLabel: auditActor.label,
       requestId: options.context?.requestId ?? null,
       ipAddress: options.context?.ipAddress ?? null,
-    }),
-  )) as unknown as pg.QueryResult<ClaimedAlertRow & { held: number; id: string | null }>[];
-  const [{ held, ...claimed }] = results[1].rows;
+    });
+    const results = (await pool.query(message)) as unknown as pg.QueryResult<ClaimAnswer>[];
+    return results[2].rows[0];
+  };
+
+  let answer = await send(false);
+  if (answer.housekeepingDue) {
+    // Rare: expired leases go back to the queue, audited one by one, and everything that fell due is
+    // marked, through the domain functions; then the claim is sent again.
+    await expireLeases(prisma, { now, context: options.context });
+    await markOverdueAlerts(prisma, { now });
+    answer = await send(true);
+  }
+  const { held, maxHeld, housekeepingDue, ...claimed } = answer;
   if (claimed.id === null) {
-    const refusal = holdLimitReached(held, queue.maxHeldPerAnalyst);
+    const refusal = holdLimitReached(held, maxHeld);
     if (refusal) throw refusal;
     return null;
   }
