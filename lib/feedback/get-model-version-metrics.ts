@@ -1,8 +1,10 @@
 // How each model version really performs over a window (DESIGN.md §4 Feedback-loop metrics): the
 // numbers of the Model health screen and of GET /api/v1/metrics/model-versions.
 //
-// Counting happens in PostgreSQL: a handful of GROUP BY queries over the window's alerts return a few
-// rows per model version (per bucket, per calibration bin, per day). lib/metrics then turns counts
+// Counting happens in PostgreSQL, over daily summaries (one row per model version and UTC day, kept
+// fresh by lib/feedback/refresh-daily-summaries.ts): a handful of GROUP BY queries over the window's
+// days return a few rows per model version (per bucket, per calibration bin, per day). At 1,000,000
+// alerts this replaced reading the window's ~90,000 alerts on every view. lib/metrics then turns counts
 // into rates with Wilson intervals. Two measures need the scores themselves — ROC AUC / average
 // precision (ranks) and PSI (reference quantiles) — and for those each model version sends back
 // about SCORE_SAMPLE_CAP scores per list at most: all of them when there are fewer, otherwise a
@@ -27,8 +29,8 @@ import {
   realizedPrecision,
   rocAuc,
 } from "@/lib/metrics";
-import { CALIBRATION_BINS, calibrationInnerEdges, expectedCalibrationErrorOfBins, reliabilityBinsFromSums, type BinSums } from "@/lib/feedback/calibration-bins";
-import { groundTruthExpression, latestExternalLabels } from "@/lib/feedback/ground-truth-sql";
+import { expectedCalibrationErrorOfBins, reliabilityBinsFromSums, type BinSums } from "@/lib/feedback/calibration-bins";
+import { refreshModelVersionDays } from "@/lib/feedback/refresh-daily-summaries";
 import { bucketsOf, DAY_MS, resolveMetricsWindow, windowJson, type Bucket, type MetricsWindow } from "@/lib/feedback/metrics-window";
 import type { ModelVersionMetrics, ModelVersionMetricsAnswer, ModelVersionMetricsQuery, WindowQuery } from "@/lib/feedback/schemas";
 
@@ -98,8 +100,9 @@ interface BinRow extends BinSums {
 interface ScoreListRow {
   modelVersionId: string;
   total: number;
-  scores: number[];
-  labels: number[];
+  /** One slice per day. */
+  scores: number[][];
+  labels: number[][];
 }
 
 interface PrecisionAtKRow {
@@ -117,23 +120,48 @@ interface WindowAggregates {
   bins: BinRow[];
   scoreLists: ScoreListRow[];
   topK: PrecisionAtKRow[];
+  drift: DriftRow[];
 }
 
 interface DriftRow {
   modelVersionId: string;
   current: boolean;
   total: number;
+  /** [day index from the start of the current window, that day's sampled scores]. */
+  days: [number, number[]][];
+}
+
+/** A drift list flattened: its scores, and for each the day index it came from. */
+interface DriftList {
+  total: number;
   scores: number[];
   days: number[];
 }
 
+function flattenDrift(row: DriftRow | undefined): DriftList | undefined {
+  if (!row) return undefined;
+  const scores: number[] = [];
+  const days: number[] = [];
+  for (const [day, slice] of row.days) {
+    for (const score of slice) {
+      scores.push(score);
+      days.push(day);
+    }
+  }
+  return { total: row.total, scores, days };
+}
+
 /**
- * Keeps every row when the list has at most `cap` entries, otherwise a Bernoulli sample of rate
- * cap / total decided by a hash of the alert id: no sort, the same rows on every call, and a size
- * that varies around `cap` by about √cap (±1% at 20,000).
+ * How many entries of a day's key-ordered array are in the sample: all of them when the whole list
+ * has at most `cap`, otherwise those whose key is below 2^20 · cap / total — a Bernoulli sample of
+ * rate cap / total decided by a hash of the alert id (SAMPLE_KEY_SQL): the same alerts on every
+ * call, and a size that varies around `cap` by about √cap (±1% at 20,000). Keys are whole numbers,
+ * so key < θ is key ≤ ⌈θ⌉ − 1, and width_bucket counts the keys ≤ that by binary search.
  */
-function sampled(id: Prisma.Sql, total: Prisma.Sql, cap: number): Prisma.Sql {
-  return Prisma.sql`(${total} <= ${cap} OR (hashtextextended(${id}::text, 0) & 1048575) < 1048576::float8 * ${cap} / ${total})`;
+function sampledPrefix(keys: Prisma.Sql, total: Prisma.Sql, cap: number): Prisma.Sql {
+  return Prisma.sql`(CASE WHEN cardinality(${keys}) = 0 THEN 0
+                         WHEN ${total} <= ${cap} THEN cardinality(${keys})
+                         ELSE width_bucket((ceil(1048576::float8 * ${cap} / ${total}) - 1)::int, ${keys}) END)`;
 }
 
 function weighted(successes: number, trials: number, alerts: number) {
@@ -181,117 +209,86 @@ export async function getModelVersionMetrics(db: DbOrTx, options: GetModelVersio
   const days = bucketsOf(window, "day");
   const driftSpan = { from: driftCurrentFrom, to: window.to, matureBefore: window.matureBefore };
 
-  const truth = groundTruthExpression(Prisma.sql`a.final_outcome`, Prisma.sql`ext.label`);
-  // width_bucket counts the thresholds ≤ its operand; on negated edges that is the count of edges ≥ p,
-  // so (bins − 1) minus it is the count of edges < p: the (lower, upper] bin lib/metrics uses.
-  const negatedEdges = calibrationInnerEdges().map((edge) => -edge).reverse();
   const step = window.bucket === "day" ? "1 day" : "7 days";
-  const dayList = days.map((day) => day.from.toISOString().slice(0, 10));
-  const topTruth = groundTruthExpression(Prisma.sql`top.final_outcome`, Prisma.sql`ext.label`);
+  const spanFrom = new Date(Math.min(window.from.getTime(), driftReferenceFrom.getTime()));
+  const dayOf = (date: Date) => date.toISOString().slice(0, 10);
 
-  // One statement: the window's alerts and their ground truth are read once (`t`), then aggregated
-  // five ways. Each aggregation comes back as a JSON array of a few rows per model version.
-  const [aggregateRows, drift] = await Promise.all([
-    db.$queryRaw<[WindowAggregates]>(Prisma.sql`
-      WITH a AS MATERIALIZED (
-        SELECT a.id, a.model_version_id, a.received_at, a.below_the_line, a.inclusion_probability, a.state, a.final_outcome,
-               a.probability, a.calibrated, a.score, a.priority
-          FROM alerts a
-         WHERE a.model_version_id = ANY(${ids}::uuid[]) AND a.received_at >= ${window.from} AND a.received_at < ${window.to}
-      ),
-      -- The labels of the window's alerts, looked up from the rows just read: naming the window
-      -- again here made the planner read the alerts a second time (a seventh of the statement).
-      ext AS (${latestExternalLabels(Prisma.sql`SELECT id FROM a`)}),
-      t AS MATERIALIZED (
-        SELECT a.id, a.model_version_id AS mv, a.received_at, a.below_the_line AS btl, a.inclusion_probability AS pi,
-               a.state = 'closed' AS closed, a.final_outcome, a.probability AS p, a.calibrated, a.score, a.priority,
-               ext.label, ${truth} AS y
-          FROM a
-          LEFT JOIN ext ON ext.alert_id = a.id
-      ),
-      summaries AS (
-        SELECT mv AS "modelVersionId", btl AS "belowTheLine",
-               count(*) AS received,
-               count(*) FILTER (WHERE closed) AS closed,
-               count(*) FILTER (WHERE final_outcome = 'confirmed_fraud') AS "mixFraud",
-               count(*) FILTER (WHERE final_outcome = 'legitimate') AS "mixLegitimate",
-               count(*) FILTER (WHERE final_outcome = 'inconclusive') AS "mixInconclusive",
-               count(*) FILTER (WHERE closed AND y = 1) AS "truthFraud",
-               count(*) FILTER (WHERE closed AND y = 0) AS "truthLegitimate",
-               count(*) FILTER (WHERE closed AND y IS NULL) AS "truthUnknown",
-               count(*) FILTER (WHERE closed AND ((label = 'fraud' AND final_outcome = 'legitimate')
-                                               OR (label = 'genuine' AND final_outcome = 'confirmed_fraud'))) AS overturned,
-               count(*) FILTER (WHERE closed AND y IS NOT NULL AND p IS NOT NULL) AS "calibrationAlerts",
-               count(*) FILTER (WHERE closed AND y IS NOT NULL AND p IS NOT NULL AND calibrated) AS "calibratedAlerts",
-               sum((p - y) ^ 2) FILTER (WHERE closed AND y IS NOT NULL) AS "brierSum",
-               sum(1 / pi) AS "weightAll",
-               sum(1 / pi) FILTER (WHERE closed AND y IS NOT NULL) AS "weightResolved",
-               sum(1 / pi) FILTER (WHERE closed AND y = 1) AS "weightFraud"
-          FROM t GROUP BY mv, btl
-      ),
-      series AS (
-        SELECT mv AS "modelVersionId", date_bin(${step}::interval, received_at, ${window.from}::timestamptz) AS "bucketFrom",
-               count(*) AS received,
-               count(*) FILTER (WHERE closed) AS closed,
-               count(*) FILTER (WHERE closed AND y = 1) AS "truthFraud",
-               count(*) FILTER (WHERE closed AND y = 0) AS "truthLegitimate",
-               count(*) FILTER (WHERE closed AND y IS NULL) AS "truthUnknown"
-          FROM t WHERE NOT btl GROUP BY 1, 2
-      ),
-      bins AS (
-        SELECT mv AS "modelVersionId", ${CALIBRATION_BINS - 1} - width_bucket(-p, ${negatedEdges}::float8[]) AS bin,
-               count(*) AS n, sum(p) AS "sumP", sum(y) AS "sumY"
-          FROM t WHERE NOT btl AND closed AND p IS NOT NULL AND y IS NOT NULL GROUP BY 1, 2
-      ),
-      labelled AS (SELECT mv, count(*) AS total FROM t WHERE NOT btl AND closed AND y IS NOT NULL GROUP BY mv),
-      score_lists AS (
-        SELECT t.mv AS "modelVersionId", max(l.total) AS total, array_agg(t.score ORDER BY t.score DESC, t.id) AS scores,
-               array_agg(t.y ORDER BY t.score DESC, t.id) AS labels
-          FROM t JOIN labelled l ON l.mv = t.mv
-         WHERE NOT t.btl AND t.closed AND t.y IS NOT NULL AND ${sampled(Prisma.sql`t.id`, Prisma.sql`l.total`, cap)}
-         GROUP BY 1
-      ),
-      -- The k highest-priority alerts of each version and UTC day (windows are whole UTC days), read
-      -- from alerts_daily_priority_idx in the queue's order, k entries per (version, day).
-      top_k AS (
-        SELECT m.mv AS "modelVersionId", (d.day::timestamp AT TIME ZONE 'UTC') AS "dayFrom", count(*) AS considered,
-               count(*) FILTER (WHERE ${topTruth} = 1) AS fraud, count(${topTruth}) AS resolved
-          FROM unnest(${ids}::uuid[]) AS m(mv)
-         CROSS JOIN unnest(${dayList}::date[]) AS d(day)
-         CROSS JOIN LATERAL (
-           SELECT x.id, x.final_outcome FROM alerts x
-            WHERE x.model_version_id = m.mv AND (x.received_at AT TIME ZONE 'UTC')::date = d.day AND NOT x.below_the_line
-            ORDER BY x.priority DESC NULLS LAST, x.received_at, x.id
-            LIMIT ${k}) top
-          LEFT JOIN ext ON ext.alert_id = top.id
-         GROUP BY 1, 2
-      )
-      SELECT (SELECT coalesce(json_agg(summaries), '[]') FROM summaries) AS summaries,
-             (SELECT coalesce(json_agg(series), '[]') FROM series) AS series,
-             (SELECT coalesce(json_agg(bins), '[]') FROM bins) AS bins,
-             (SELECT coalesce(json_agg(score_lists), '[]') FROM score_lists) AS "scoreLists",
-             (SELECT coalesce(json_agg(top_k), '[]') FROM top_k) AS "topK"`),
-    // Drift reads a different span (reference and current windows) and needs no labels.
-    db.$queryRaw<DriftRow[]>(Prisma.sql`
-      WITH counts AS (
-        SELECT a.model_version_id AS mv, a.received_at >= ${driftCurrentFrom} AS current, count(*) AS total
-          FROM alerts a
-         WHERE a.model_version_id = ANY(${ids}::uuid[]) AND NOT a.below_the_line
-           AND a.received_at >= ${driftReferenceFrom} AND a.received_at < ${window.to}
-         GROUP BY 1, 2
-      )
-      SELECT c.mv AS "modelVersionId", c.current, c.total::int AS total, array_agg(a.score ORDER BY a.score, a.id) AS scores,
-             array_agg(floor(extract(epoch FROM a.received_at - ${driftCurrentFrom}::timestamptz) / 86400)::int ORDER BY a.score, a.id) AS days
-        FROM alerts a
-        JOIN counts c ON c.mv = a.model_version_id AND c.current = (a.received_at >= ${driftCurrentFrom})
-       WHERE a.model_version_id = ANY(${ids}::uuid[]) AND NOT a.below_the_line
-         AND a.received_at >= ${driftReferenceFrom} AND a.received_at < ${window.to}
-         AND ${sampled(Prisma.sql`a.id`, Prisma.sql`c.total`, cap)}
-       GROUP BY 1, 2, 3`),
-  ]);
-  const { summaries, series, bins, scoreLists, topK } = aggregateRows[0];
-  // Score lists arrive sorted (AUC/AP lists by score descending, drift lists ascending): lib/metrics
-  // sorts its own copy, and a sorted input makes that sort linear, which matters for the PSI of each bucket.
+  // Bring the daily summaries of the span up to date (lib/feedback/refresh-daily-summaries.ts), then
+  // add them up: one statement over a few dozen rows per model version, each aggregation returned as
+  // a JSON array of a few rows per model version. The score lists and drift unnest the days' stored
+  // scores and draw the sample by the stored keys.
+  await refreshModelVersionDays(db, { modelVersionIds: ids, span: { from: spanFrom, to: window.to }, k });
+  const [aggregates] = await db.$queryRaw<[WindowAggregates]>(Prisma.sql`
+    WITH d AS MATERIALIZED (
+      SELECT * FROM model_version_daily_summaries
+       WHERE model_version_id = ANY(${ids}::uuid[]) AND day >= ${dayOf(spanFrom)}::date AND day < ${dayOf(window.to)}::date
+    ),
+    w AS (SELECT * FROM d WHERE day >= ${dayOf(window.from)}::date),
+    summaries AS (
+      SELECT model_version_id AS "modelVersionId", below_the_line AS "belowTheLine",
+             sum(received) AS received, sum(closed) AS closed,
+             sum(mix_fraud) AS "mixFraud", sum(mix_legitimate) AS "mixLegitimate", sum(mix_inconclusive) AS "mixInconclusive",
+             sum(truth_fraud) AS "truthFraud", sum(truth_legitimate) AS "truthLegitimate", sum(truth_unknown) AS "truthUnknown",
+             sum(overturned) AS overturned, sum(calibration_alerts) AS "calibrationAlerts", sum(calibrated_alerts) AS "calibratedAlerts",
+             sum(brier_sum) AS "brierSum", sum(weight_all) AS "weightAll", sum(weight_resolved) AS "weightResolved",
+             sum(weight_fraud) AS "weightFraud"
+        FROM w GROUP BY 1, 2
+    ),
+    series AS (
+      SELECT model_version_id AS "modelVersionId",
+             date_bin(${step}::interval, day::timestamp AT TIME ZONE 'UTC', ${window.from}::timestamptz) AS "bucketFrom",
+             sum(received) AS received, sum(closed) AS closed, sum(truth_fraud) AS "truthFraud",
+             sum(truth_legitimate) AS "truthLegitimate", sum(truth_unknown) AS "truthUnknown"
+        FROM w WHERE NOT below_the_line GROUP BY 1, 2
+    ),
+    bins AS (
+      SELECT w.model_version_id AS "modelVersionId", (b.ord - 1)::int AS bin, sum(b.n) AS n, sum(b.sum_p) AS "sumP", sum(b.sum_y) AS "sumY"
+        FROM w CROSS JOIN LATERAL unnest(w.bin_counts, w.bin_sum_p, w.bin_sum_y) WITH ORDINALITY AS b(n, sum_p, sum_y, ord)
+       WHERE NOT w.below_the_line GROUP BY 1, 2 HAVING sum(b.n) > 0
+    ),
+    -- The lists' lengths come from the day rows (labelled = closed with a known truth). Each day's
+    -- arrays are in sample-key order, so its sample is the prefix of keys below the cut: found by
+    -- binary search (width_bucket) and sliced, never unnested. Sent back as one slice per day.
+    labelled_totals AS (
+      SELECT model_version_id AS mv, sum(truth_fraud + truth_legitimate) AS total FROM w WHERE NOT below_the_line GROUP BY 1
+    ),
+    score_lists AS (
+      SELECT t.mv AS "modelVersionId", t.total, json_agg(w.labelled_scores[1:cut.n]) AS scores, json_agg(w.labelled_truths[1:cut.n]) AS labels
+        FROM labelled_totals t
+        JOIN w ON w.model_version_id = t.mv AND NOT w.below_the_line
+       CROSS JOIN LATERAL (SELECT ${sampledPrefix(Prisma.sql`w.labelled_keys`, Prisma.sql`t.total`, cap)} AS n) cut
+       WHERE cut.n > 0
+       GROUP BY t.mv, t.total
+    ),
+    top_k AS (
+      SELECT model_version_id AS "modelVersionId", (day::timestamp AT TIME ZONE 'UTC') AS "dayFrom",
+             top_considered AS considered, top_fraud AS fraud, top_resolved AS resolved
+        FROM w WHERE NOT below_the_line AND top_considered > 0
+    ),
+    -- Drift reads its own span (reference and current windows) and needs no labels.
+    drift_days AS (
+      SELECT model_version_id AS mv, day >= ${dayOf(driftCurrentFrom)}::date AS current, day - ${dayOf(driftCurrentFrom)}::date AS day_index,
+             scores, sample_keys, received
+        FROM d WHERE NOT below_the_line AND day >= ${dayOf(driftReferenceFrom)}::date
+    ),
+    drift_totals AS (SELECT mv, current, sum(received) AS total FROM drift_days GROUP BY 1, 2),
+    drift AS (
+      SELECT t.mv AS "modelVersionId", t.current, t.total, json_agg(json_build_array(r.day_index, r.scores[1:cut.n])) AS days
+        FROM drift_totals t
+        JOIN drift_days r ON r.mv = t.mv AND r.current = t.current
+       CROSS JOIN LATERAL (SELECT ${sampledPrefix(Prisma.sql`r.sample_keys`, Prisma.sql`t.total`, cap)} AS n) cut
+       WHERE cut.n > 0
+       GROUP BY t.mv, t.current, t.total
+    )
+    SELECT (SELECT coalesce(json_agg(summaries), '[]') FROM summaries) AS summaries,
+           (SELECT coalesce(json_agg(series), '[]') FROM series) AS series,
+           (SELECT coalesce(json_agg(bins), '[]') FROM bins) AS bins,
+           (SELECT coalesce(json_agg(score_lists), '[]') FROM score_lists) AS "scoreLists",
+           (SELECT coalesce(json_agg(top_k), '[]') FROM top_k) AS "topK",
+           (SELECT coalesce(json_agg(drift), '[]') FROM drift) AS drift`);
+  const { summaries, series, bins, scoreLists, topK, drift } = aggregates;
+  // Lists arrive as unsorted slices. lib/metrics sorts its own copy; the drift reference is sorted
+  // once here, since every PSI of a day sorts it again and a sorted input makes that sort linear.
   const startOf = (text: string) => new Date(text).getTime();
 
   const modelVersions: ModelVersionMetrics[] = versions.map((version) => {
@@ -324,13 +321,14 @@ export async function getModelVersionMetrics(db: DbOrTx, options: GetModelVersio
     const calibrationAlerts = alerted?.calibrationAlerts ?? 0;
 
     const list = mine(scoreLists)[0];
-    const scores = list?.scores ?? [];
-    const labels = list?.labels ?? [];
+    const scores = list?.scores.flat() ?? [];
+    const labels = list?.labels.flat() ?? [];
     const positives = labels.filter((y) => y === 1).length;
 
     const driftRows = mine(drift);
-    const reference = driftRows.find((row) => !row.current);
-    const current = driftRows.find((row) => row.current);
+    const reference = flattenDrift(driftRows.find((row) => !row.current));
+    const current = flattenDrift(driftRows.find((row) => row.current));
+    reference?.scores.sort((a, b) => a - b);
     const stability = reference && current ? populationStabilityIndex(reference.scores, current.scores) : null;
     // Days when a typical day has enough scores for its own PSI, otherwise weeks.
     const driftStep = (current?.scores.length ?? 0) >= MIN_SCORES_FOR_PSI_BUCKET * query.driftCurrentDays ? "day" : "week";

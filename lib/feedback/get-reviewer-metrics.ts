@@ -2,8 +2,9 @@
 // Reviewer quality screen and of GET /api/v1/metrics/reviewers.
 //
 // A reviewer's work in a window is their first reviews (review_round 1) closed in it. Everything is
-// counted in PostgreSQL with GROUPING SETS, so one query gives each reviewer's row and the team's;
-// the second-review pairs for Cohen's kappa come back as a 3×3 table of counts per reviewer.
+// counted in PostgreSQL over daily summaries (one row per reviewer and UTC day, kept fresh by
+// lib/feedback/refresh-daily-summaries.ts) with GROUPING SETS, so one query gives each reviewer's row
+// and the team's; the second-review pairs for Cohen's kappa come back as a 3×3 table of counts per reviewer.
 //
 // Who stands out: a reviewer whose whole 95% Wilson interval lies above or below the team's rate.
 // Comparing intervals with the team rather than point values keeps a reviewer with five alerts from
@@ -15,7 +16,7 @@ import { Prisma } from "@/lib/generated/prisma/client";
 import { getSettings } from "@/lib/settings/get-settings";
 import { cohenKappa, falseClearRate, observedOverExpected, rate, realizedPrecision } from "@/lib/metrics";
 import { standsOut } from "@/lib/feedback/stands-out";
-import { latestExternalLabels } from "@/lib/feedback/ground-truth-sql";
+import { OUTCOME_ORDER, refreshReviewerDays } from "@/lib/feedback/refresh-daily-summaries";
 import { resolveMetricsWindow, windowJson } from "@/lib/feedback/metrics-window";
 import type { ReviewerMetrics, ReviewerMetricsAnswer, ReviewerNumbers, WindowQuery } from "@/lib/feedback/schemas";
 
@@ -26,7 +27,7 @@ export interface GetReviewerMetricsOptions {
   now: Date;
 }
 
-const OUTCOME_CATEGORIES = ["confirmed_fraud", "legitimate", "inconclusive"] as const;
+const OUTCOME_CATEGORIES = OUTCOME_ORDER;
 
 interface FirstReviewRow {
   /** NULL on the team row of the grouping sets. */
@@ -94,54 +95,48 @@ export async function getReviewerMetrics(db: DbOrTx, options: GetReviewerMetrics
   const settings = await getSettings(db);
   const window = resolveMetricsWindow(query, { now, labelMaturityDays: settings.metrics.labelMaturityDays });
 
-  // One statement: the window's first reviews are read once, the latest external label is looked up
-  // only for those cleared `legitimate` (the only ones a label can make a false clear), and names are
-  // joined after aggregating.
+  // Bring the reviewer days of the window up to date (lib/feedback/refresh-daily-summaries.ts), then
+  // add them up, names joined after aggregating. The median handling time unnests the days' sorted
+  // handling times; the agreement pairs are each day's 3 × 3 table in OUTCOME_ORDER, row-major.
+  await refreshReviewerDays(db, { span: window });
+  const fromDay = window.from.toISOString().slice(0, 10);
+  const toDay = window.to.toISOString().slice(0, 10);
   const [{ firstReviews, pairs, secondReviews }] = await db.$queryRaw<[{ firstReviews: FirstReviewRow[]; pairs: PairRow[]; secondReviews: SecondReviewRow[] }]>(Prisma.sql`
-    WITH first AS MATERIALIZED (
-      -- Each outcome's alert by its primary key. LIMIT 1 keeps the lookup per row: as a plain join
-      -- the planner hashed the whole alerts table (a sequential read of 1,000,000 rows, half the
-      -- statement, npm run bench -- --scale 1000000 --explain) to meet 74,000 outcomes.
-      SELECT o.reviewer_id, o.alert_id, o.outcome, o.handling_seconds, a.probability, a.calibrated
-        FROM outcomes o
-       CROSS JOIN LATERAL (SELECT x.probability, x.calibrated FROM alerts x WHERE x.id = o.alert_id LIMIT 1) a
-       WHERE o.review_round = 1 AND o.closed_at >= ${window.from} AND o.closed_at < ${window.to}
+    WITH d AS MATERIALIZED (
+      SELECT * FROM reviewer_daily_summaries WHERE day >= ${fromDay}::date AND day < ${toDay}::date
     ),
-    ext AS (${latestExternalLabels(Prisma.sql`SELECT alert_id FROM first WHERE outcome = 'legitimate'`)}),
     per_reviewer AS (
-      SELECT f.reviewer_id,
-             count(*) AS closed,
-             count(*) FILTER (WHERE f.outcome = 'confirmed_fraud') AS fraud,
-             count(*) FILTER (WHERE f.outcome = 'legitimate') AS legitimate,
-             count(*) FILTER (WHERE f.outcome = 'inconclusive') AS inconclusive,
-             count(f.probability) AS "withProbability",
-             count(f.probability) FILTER (WHERE f.outcome = 'confirmed_fraud') AS "fraudWithProbability",
-             sum(f.probability) AS "expectedFraud",
-             count(f.probability) FILTER (WHERE f.calibrated) AS calibrated,
-             count(*) FILTER (WHERE f.outcome = 'legitimate' AND ext.label = 'fraud') AS "falseClears",
-             percentile_cont(0.5) WITHIN GROUP (ORDER BY f.handling_seconds) AS "medianHandlingSeconds"
-        FROM first f
-        LEFT JOIN ext ON ext.alert_id = f.alert_id
-       GROUP BY GROUPING SETS ((f.reviewer_id), ())
+      SELECT d.reviewer_id,
+             sum(d.closed) AS closed, sum(d.fraud) AS fraud, sum(d.legitimate) AS legitimate, sum(d.inconclusive) AS inconclusive,
+             sum(d.with_probability) AS "withProbability", sum(d.fraud_with_probability) AS "fraudWithProbability",
+             sum(d.expected_fraud) AS "expectedFraud", sum(d.calibrated) AS calibrated, sum(d.false_clears) AS "falseClears"
+        FROM d
+       GROUP BY GROUPING SETS ((d.reviewer_id), ())
+      HAVING GROUPING(d.reviewer_id) = 1 OR sum(d.closed) > 0
+    ),
+    medians AS (
+      SELECT d.reviewer_id, percentile_cont(0.5) WITHIN GROUP (ORDER BY h.seconds) AS seconds
+        FROM d CROSS JOIN LATERAL unnest(d.handling_seconds) AS h(seconds)
+       GROUP BY GROUPING SETS ((d.reviewer_id), ())
     ),
     first_reviews AS (
       SELECT r.reviewer_id AS "reviewerId", u.pseudonym, u.display_name AS "displayName", r.closed, r.fraud, r.legitimate,
              r.inconclusive, r."withProbability", r."fraudWithProbability", r."expectedFraud", r.calibrated, r."falseClears",
-             r."medianHandlingSeconds"
-        FROM per_reviewer r LEFT JOIN users u ON u.id = r.reviewer_id
+             m.seconds AS "medianHandlingSeconds"
+        FROM per_reviewer r
+        LEFT JOIN medians m ON m.reviewer_id IS NOT DISTINCT FROM r.reviewer_id
+        LEFT JOIN users u ON u.id = r.reviewer_id
     ),
     pairs AS (
-      SELECT CASE WHEN GROUPING(f.reviewer_id) = 0 THEN f.reviewer_id END AS "reviewerId",
-             f.outcome AS first, s.outcome AS second, count(*) AS n
-        FROM first f
-        JOIN outcomes s ON s.alert_id = f.alert_id AND s.review_round = 2
-       GROUP BY GROUPING SETS ((f.reviewer_id, f.outcome, s.outcome), (f.outcome, s.outcome))
+      SELECT CASE WHEN GROUPING(d.reviewer_id) = 0 THEN d.reviewer_id END AS "reviewerId",
+             (${[...OUTCOME_ORDER]}::text[])[(c.cell - 1) / 3 + 1] AS first, (${[...OUTCOME_ORDER]}::text[])[(c.cell - 1) % 3 + 1] AS second,
+             sum(c.n) AS n
+        FROM d CROSS JOIN LATERAL unnest(d.agreement_pairs) WITH ORDINALITY AS c(n, cell)
+       WHERE c.n > 0
+       GROUP BY GROUPING SETS ((d.reviewer_id, c.cell), (c.cell))
     ),
     second_reviews AS (
-      SELECT o.reviewer_id AS "reviewerId", count(*) AS n
-        FROM outcomes o
-       WHERE o.review_round = 2 AND o.closed_at >= ${window.from} AND o.closed_at < ${window.to}
-       GROUP BY 1
+      SELECT reviewer_id AS "reviewerId", sum(second_reviews) AS n FROM d GROUP BY 1 HAVING sum(second_reviews) > 0
     )
     SELECT (SELECT coalesce(json_agg(first_reviews), '[]') FROM first_reviews) AS "firstReviews",
            (SELECT coalesce(json_agg(pairs), '[]') FROM pairs) AS pairs,

@@ -148,6 +148,29 @@ describe("SQL aggregation against lib/metrics on the same alerts", () => {
     expect(Math.abs(first.discrimination.rocAuc! - rocAuc(p, y)!)).toBeLessThan(0.1);
   });
 
+  it("samples across days exactly the alerts whose key falls below the cut, the rule worked out alert by alert", async () => {
+    // The summaries keep each day's scores in key order and slice the prefix below 2^20 · cap / total
+    // by binary search; here the same rule is applied to every alert on its own (its key computed
+    // from its id in SQL), over the two days of the current drift window.
+    const cap = 300;
+    const answer = await getModelVersionMetrics(prisma, {
+      query: parseModelVersionMetricsQuery(new URLSearchParams(`window=day&date=2026-07-06&driftCurrentDays=2&driftReferenceDays=2&modelVersionId=${driftingVersionId}`)),
+      now,
+      scoreSampleCap: cap,
+    });
+    const keyedScores = (from: string, to: string) => prisma.$queryRaw<{ score: number; key: number }[]>`
+      SELECT score, (hashtextextended(id::text, 0) & 1048575)::int AS key FROM alerts
+       WHERE model_version_id = ${driftingVersionId}::uuid AND received_at >= ${from}::timestamptz AND received_at < ${to}::timestamptz`;
+    const sample = (rows: { score: number; key: number }[]) => rows.filter((row) => row.key < (1048576 * cap) / rows.length).map((row) => row.score);
+    const current = await keyedScores("2026-07-05T00:00:00Z", "2026-07-07T00:00:00Z");
+    const reference = await keyedScores("2026-07-03T00:00:00Z", "2026-07-05T00:00:00Z");
+    expect([current.length, reference.length]).toEqual([1099, 600]);
+    const { drift } = answer.modelVersions[0];
+    expect(drift.current.sample).toEqual({ used: sample(current).length, total: 1099, sampled: true });
+    expect(drift.reference.sample).toEqual({ used: sample(reference).length, total: 600, sampled: true });
+    expect(drift.psi).toBeCloseTo(populationStabilityIndex(sample(reference), sample(current)).psi, 12);
+  });
+
   it("gives the same PSI as lib/metrics on the same scores, overall and per day, and none for a day with too few scores", async () => {
     const answer = await getModelVersionMetrics(prisma, {
       query: parseModelVersionMetricsQuery(new URLSearchParams(`window=day&date=2026-07-06&driftCurrentDays=2&driftReferenceDays=2&modelVersionId=${driftingVersionId}`)),

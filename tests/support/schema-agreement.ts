@@ -41,6 +41,8 @@ function nativeType(attribute: string): string | undefined {
       return `timestamp(${args ?? 6}) without time zone`;
     case "Text":
       return "text";
+    case "Date":
+      return "date";
     default:
       throw new Error(`schema-agreement: native type @db.${name} is not mapped yet; add it here`);
   }
