@@ -59,6 +59,19 @@ export interface GetWorkloadOptions {
   context?: AuditContext;
 }
 
+interface OpenRow {
+  /** Whole hours of age, AGE_HISTOGRAM_HOURS for everything older. */
+  hour: number;
+  elBand: number;
+  state: string;
+  overdue: boolean;
+  currency: string;
+  alerts: number;
+  expectedLoss: number;
+  /** Due times (epoch ms) after now and within the horizon. */
+  upcomingMs: number[];
+}
+
 interface BacklogRow {
   ageBand: number;
   elBand: number;
@@ -136,33 +149,22 @@ export async function getWorkload(db: DbOrTx, options: GetWorkloadOptions): Prom
   const outcomesFrom = new Date(Math.min(todayStart.getTime(), rateStart.getTime(), handlingStart.getTime(), onShiftSince.getTime()));
   const horizonEnd = new Date(now.getTime() + horizonHours * HOUR_MS);
 
-  // 1. Open alerts by age band × expected-loss band × state × overdue × currency. width_bucket gives
-  // the band number (1 = first band); an arrival after `now` (clock skew) counts as the youngest band.
-  const backlogRowsQuery = db.$queryRaw<BacklogRow[]>`
-    SELECT greatest(1, width_bucket(extract(epoch FROM (${now}::timestamptz - received_at))::float8 / 3600, ${ageEdges}::float8[]))::int AS "ageBand",
+  // 1–3. One read of the open alerts (alerts_open_received_idx, index-only), grouped by whole hours of
+  // age (the histogram; the age bands are whole hours too, so each band is a sum of hours) ×
+  // expected-loss band × state × overdue × currency, with each group's due times within the
+  // horizon for the breach projection. width_bucket gives the band number (1 = first band); an
+  // arrival after `now` (clock skew) counts as the youngest. Three reads of the 200,000 open alerts
+  // of the benchmark had been most of this screen's time (npm run bench -- --scale 1000000).
+  const openRowsQuery = db.$queryRaw<OpenRow[]>`
+    SELECT least(${AGE_HISTOGRAM_HOURS}::int, floor(greatest(0, extract(epoch FROM (${now}::timestamptz - received_at))::float8) / 3600)::int) AS hour,
            CASE WHEN expected_loss_minor IS NULL THEN 0
                 ELSE width_bucket(expected_loss_minor::float8, ${elEdges}::float8[]) END::int AS "elBand",
            state, coalesce(due_at <= ${now}, false) AS overdue, currency,
-           count(*)::int AS alerts, coalesce(sum(expected_loss_minor), 0)::float8 AS "expectedLoss"
+           count(*)::int AS alerts, coalesce(sum(expected_loss_minor), 0)::float8 AS "expectedLoss",
+           coalesce(array_agg((extract(epoch FROM due_at) * 1000)::float8) FILTER (WHERE due_at > ${now} AND due_at <= ${horizonEnd}), '{}')::float8[] AS "upcomingMs"
       FROM alerts
      WHERE state <> 'closed'
      GROUP BY 1, 2, 3, 4, 5`;
-
-  // 2. Open alerts by whole hours of age, for the histogram.
-  const ageRowsQuery = db.$queryRaw<{ bin: number; overdue: boolean; alerts: number }[]>`
-    SELECT least(${AGE_HISTOGRAM_HOURS}::int, floor(greatest(0, extract(epoch FROM (${now}::timestamptz - received_at))::float8) / 3600)::int) AS bin,
-           coalesce(due_at <= ${now}, false) AS overdue, count(*)::int AS alerts
-      FROM alerts
-     WHERE state <> 'closed'
-     GROUP BY 1, 2`;
-
-  // 3. What the breach projection needs: how many are past due (they use capacity first) and the due
-  // times within the horizon. Bounded by the alerts due before the horizon ends.
-  const dueQuery = db.$queryRaw<{ pastDue: number; upcomingMs: number[] }[]>`
-    SELECT count(*) FILTER (WHERE due_at <= ${now})::int AS "pastDue",
-           coalesce(array_agg((extract(epoch FROM due_at) * 1000)::float8 ORDER BY due_at) FILTER (WHERE due_at > ${now}), '{}')::float8[] AS "upcomingMs"
-      FROM alerts
-     WHERE state <> 'closed' AND due_at <= ${horizonEnd}`;
 
   // 4. Per reviewer: reviews today and in the rate window, the first claim in it, last activity, median handling.
   const analystRowsQuery = db.$queryRaw<AnalystRow[]>`
@@ -204,10 +206,8 @@ export async function getWorkload(db: DbOrTx, options: GetWorkloadOptions): Prom
 
   // The queries are independent: side by side they use more than one connection and core (with
   // 200,000 open alerts, one after another they took 410 ms; npm run bench -- --scale 1000000).
-  const [backlogRows, ageRows, [due], analystRows, heldRows, arrivedRows, closedRows] = await Promise.all([
-    backlogRowsQuery,
-    ageRowsQuery,
-    dueQuery,
+  const [openRows, analystRows, heldRows, arrivedRows, closedRows] = await Promise.all([
+    openRowsQuery,
     analystRowsQuery,
     heldRowsQuery,
     arrivedRowsQuery,
@@ -223,7 +223,9 @@ export async function getWorkload(db: DbOrTx, options: GetWorkloadOptions): Prom
      WHERE (active AND role = ANY(${workRoles}::text[])) OR id = ANY(${heldBy}::uuid[])
      ORDER BY display_name, id`;
 
-  // ---- Backlog tables and totals (folding the few rows of query 1).
+  // ---- Backlog tables and totals (folding the few hundred rows of query 1 into bands).
+  const ageBandOfHour = (hour: number) => ageEdges.filter((edge) => edge <= hour).length;
+  const backlogRows: BacklogRow[] = openRows.map((row) => ({ ...row, ageBand: ageBandOfHour(row.hour) }));
   const byAge = AGE_BANDS.map((band) => ({ band, ...emptyCounts() }));
   const byExpectedLoss = slaBands.map((band, i) => ({
     band: {
@@ -304,7 +306,9 @@ export async function getWorkload(db: DbOrTx, options: GetWorkloadOptions): Prom
 
   const onShift = analysts.filter((analyst) => analyst.onShift);
   const teamRate = onShift.reduce((sum, analyst) => sum + analyst.closingRatePerHour, 0);
-  const dueTimes = [...Array.from({ length: due.pastDue }, () => now), ...due.upcomingMs.map((ms) => new Date(ms))];
+  const pastDue = openRows.reduce((sum, row) => sum + (row.overdue ? row.alerts : 0), 0);
+  const upcomingMs = openRows.flatMap((row) => row.upcomingMs).sort((a, b) => a - b);
+  const dueTimes = [...Array.from({ length: pastDue }, () => now), ...upcomingMs.map((ms) => new Date(ms))];
 
   // ---- History: open at the end of a day = open now − arrivals after it + closes after it.
   const arrived = new Array<number>(days).fill(0);
@@ -324,7 +328,7 @@ export async function getWorkload(db: DbOrTx, options: GetWorkloadOptions): Prom
     notOverdue: 0,
     overdue: 0,
   }));
-  for (const row of ageRows) ageDistribution[row.bin][row.overdue ? "overdue" : "notOverdue"] += row.alerts;
+  for (const row of openRows) ageDistribution[row.hour][row.overdue ? "overdue" : "notOverdue"] += row.alerts;
 
   const heldCount = (userId: string) => heldByUser.get(userId)?.length ?? 0;
   return {
