@@ -39,11 +39,12 @@ export function summarize(latencies: readonly number[]): LatencySummary {
   };
 }
 
-/** Runs `work` `runs` times one after another (after `warmup` untimed runs) and returns the latencies. */
-export async function repeat(runs: number, work: () => Promise<unknown>, warmup = 1): Promise<number[]> {
+/** Latencies of `runs` timed calls of `work` after `warmup` untimed ones; `prepare` runs untimed before each timed call. */
+export async function repeat(runs: number, work: () => Promise<unknown>, warmup = 1, prepare?: () => Promise<unknown>): Promise<number[]> {
   for (let index = 0; index < warmup; index += 1) await work();
   const latencies: number[] = [];
   for (let index = 0; index < runs; index += 1) {
+    if (prepare) await prepare();
     const start = process.hrtime.bigint();
     await work();
     latencies.push(elapsedMs(start));
