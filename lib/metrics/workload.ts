@@ -52,8 +52,16 @@ export function projectedBreaches(input: {
   now: Date;
   horizonHours: number;
   closingRatePerHour: number;
+  /**
+   * Open alerts already past due that `dueTimes` leaves out, given as a count: they come first in
+   * due order whatever their exact due times, so only their number matters (a desk with 200,000
+   * overdue alerts need not build 200,000 dates).
+   */
+  pastDueCount?: number;
 }): number {
   const { dueTimes, now, horizonHours, closingRatePerHour } = input;
+  const pastDueCount = input.pastDueCount ?? 0;
+  if (!Number.isInteger(pastDueCount) || pastDueCount < 0) throw new RangeError("pastDueCount must be a whole number ≥ 0");
   const nowMs = now.getTime();
   if (!Number.isFinite(nowMs)) throw new RangeError("now must be a valid date");
   assertNonNegative(horizonHours, "horizonHours");
@@ -72,7 +80,7 @@ export function projectedBreaches(input: {
     // The alert at position index + 1 is still open at its due time when the team cannot close
     // that many alerts by then. Comparing counts avoids dividing by the rate, which may be 0.
     const closableByDue = closingRatePerHour * ((due - nowMs) / MS_PER_HOUR);
-    if (index + 1 > closableByDue) breaches += 1;
+    if (pastDueCount + index + 1 > closableByDue) breaches += 1;
   });
   return breaches;
 }

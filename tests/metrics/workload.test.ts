@@ -76,6 +76,16 @@ describe("projected SLA breaches", () => {
     expect(projectedBreaches({ dueTimes: withoutOverdue, now, horizonHours: 2, closingRatePerHour: 2 })).toBe(0);
   });
 
+  it("takes alerts already past due as a count, with the same answer as listing them", () => {
+    // The hand-worked case above, with the 11:00 alert given as pastDueCount instead of a date.
+    const withoutOverdue = dueTimes.filter((d) => d.getTime() !== at("11:00").getTime());
+    expect(projectedBreaches({ dueTimes: withoutOverdue, now, horizonHours: 2, closingRatePerHour: 2, pastDueCount: 1 })).toBe(2);
+    // Hand-worked: three past due take 12:00–13:30; 13:00 closes 14:00 (breach), 13:20 at 14:30 (breach),
+    // 13:55 at 15:00 (breach); 14:10 is outside the 2 h horizon.
+    expect(projectedBreaches({ dueTimes: withoutOverdue, now, horizonHours: 2, closingRatePerHour: 2, pastDueCount: 3 })).toBe(3);
+    expect(() => projectedBreaches({ dueTimes, now, horizonHours: 2, closingRatePerHour: 2, pastDueCount: -1 })).toThrow(/pastDueCount/);
+  });
+
   it("with nobody closing, counts every alert falling due within the horizon", () => {
     // Due in (12:00, 14:00]: 13:00, 13:20, 13:55.
     expect(projectedBreaches({ dueTimes, now, horizonHours: 2, closingRatePerHour: 0 })).toBe(3);
