@@ -289,3 +289,30 @@ describe("order and selection", () => {
     expect(both[1]).toMatchObject({ model_name: other.modelName, model_version: other.version });
   });
 });
+
+describe("the row count announced before the rows", () => {
+  it("equals the rows that follow, whether inconclusive and unreviewed alerts are kept or not", async () => {
+    const version = await createModelVersion(database.pool);
+    const reviewer = await createPerson(database.pool);
+    const outcomes = ["confirmed_fraud", "legitimate", "inconclusive", null, "legitimate"] as const;
+    for (const [index, outcome] of outcomes.entries()) {
+      const alert = await createAlert(database.pool, version.id, { occurredAt: at(`2026-01-0${index + 1}T00:00:00Z`) });
+      if (outcome) await createOutcome(database.pool, alert.id, reviewer, { outcome, closedAt: at("2026-01-10T00:00:00Z") });
+    }
+    // Another version's alert in the same days: outside the selection, so outside the count.
+    await createAlert(database.pool, (await createModelVersion(database.pool)).id, { occurredAt: at("2026-01-02T00:00:00Z") });
+    const range = { occurredFrom: at("2026-01-01T00:00:00Z"), occurredTo: at("2026-02-01T00:00:00Z"), asOf: at("2026-03-01T00:00:00Z") };
+    for (const [keep, expected] of [
+      [{ keepInconclusive: true, keepUnreviewed: true }, 5],
+      [{ keepInconclusive: true, keepUnreviewed: false }, 4],
+      [{ keepInconclusive: false, keepUnreviewed: false }, 3],
+    ] as const) {
+      const choices = labelExportChoicesSchema.parse({ ...choicesFor(version.id, range), ...keep });
+      let announced = -1;
+      let rows = 0;
+      for await (const batch of streamLabelExportRows(database.pool, { choices, batchSize: 2, onCount: (n) => void (announced = n) })) rows += batch.length;
+      expect(rows).toBe(expected);
+      expect(announced).toBe(expected);
+    }
+  });
+});
