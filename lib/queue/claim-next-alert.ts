@@ -39,7 +39,7 @@ import type { AuditContext } from "@/lib/audit/schemas";
 import { linkStagedAuditEventsSoon } from "@/lib/audit/staged-audit-events";
 import { defaultSettings } from "@/lib/settings/schemas";
 import { expireLeases } from "@/lib/queue/expire-leases";
-import { MARK_OVERDUE_SQL, markOverdueAlerts } from "@/lib/queue/mark-overdue-alerts";
+import { MARK_BATCH, MARK_OVERDUE_SQL, markOverdueAlerts } from "@/lib/queue/mark-overdue-alerts";
 import { QUEUE_ORDER_BY } from "@/lib/queue/list-waiting-alerts";
 import { holdLimitReached } from "@/lib/queue/hold-limit";
 import { assertMayWorkAlerts, QUEUE_LOCK_CLASS } from "@/lib/queue/queue-actor";
@@ -58,6 +58,9 @@ export interface ClaimDatabases {
   prisma: PrismaClient;
   pool: pg.Pool;
 }
+
+/** Transaction-local: how many alerts the claim message's sweep marked. */
+const MARKED_SETTING = "triage_desk.overdue_marked";
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
@@ -82,10 +85,9 @@ function queueSettingSql(key: "maxHeldPerAnalyst" | "claimLeaseMinutes"): string
  *      the queue settings, the held count, the claim if below the limit, and its staged audit
  *      event (the alert.claimed event of lib/audit/schemas.ts; tests/audit/staged-audit-events.integration.test.ts
  *      checks it parses).
- * The claim stands aside (`housekeepingDue`) when a lease has run out or a due alert is still
- * unmarked (more fell due than one sweep marks, or another claimer holds it): the caller then does
- * that housekeeping through the domain functions and sends the message again, so the order stays
- * exact at `now`. Settings are read per claim, so a change applies to the very next one.
+ * The claim stands aside (`housekeepingDue`) when a lease has run out or more fell due than one
+ * sweep marks: the caller then does that housekeeping through the domain functions and sends the
+ * message again. (A due alert another claimer's sweep holds locked is marked by that sweep.) Settings are read per claim, so a change applies to the very next one.
  * A message of several statements cannot carry parameters, so values are written as literals: the
  * user id checked as a UUID, numbers checked as whole numbers, text through pg's escapeLiteral.
  */
@@ -102,10 +104,14 @@ function claimMessage(values: {
   if (!UUID.test(values.userId)) throw new AppError("invalid_input", "claim: the user id is not a UUID");
   const user = literal(values.userId);
   const now = `${literal(values.now.toISOString())}::timestamptz`;
+  // The sweep leaves how many it marked in a transaction-local setting: a full batch means more fell
+  // due than one statement marks (after a quiet night). Reading it costs nothing; probing the
+  // unmarked-due index again did, right after a mass of alerts had been marked.
   const housekeepingDue = `(EXISTS (SELECT 1 FROM alerts WHERE state = 'in_review' AND lease_expires_at <= ${now})
-                         OR EXISTS (SELECT 1 FROM alerts WHERE state = 'waiting' AND NOT past_due AND due_at <= ${now}))`;
+                         OR current_setting('${MARKED_SETTING}')::int >= ${MARK_BATCH})`;
   return `
-    ${MARK_OVERDUE_SQL.replaceAll("$1", now)};
+    WITH marked AS (${MARK_OVERDUE_SQL.replaceAll("$1", now)})
+    SELECT set_config('${MARKED_SETTING}', count(*)::text, true) FROM marked;
     SELECT pg_advisory_xact_lock(${QUEUE_LOCK_CLASS}::int, hashtext(${user}::text));
     WITH settings_now AS (
       SELECT ${queueSettingSql("maxHeldPerAnalyst")} AS max_held,

@@ -180,6 +180,23 @@ describe("hold limit", () => {
   });
 });
 
+describe("more fell due than one sweep marks", () => {
+  it("marks every due alert before claiming, so the most urgent overdue alert is taken, not one of the first thousand marked", async () => {
+    // 1,004 low-priority alerts fell due two hours ago; the sweep marks a thousand at a time in due
+    // order, so one sweep would leave the last ones — and the high-priority alert due a minute ago —
+    // unmarked, and the claim would take a marked low-priority alert ahead of it.
+    const ids = await createWaitingAlerts(prisma, { modelVersionId: model.id, count: 1_004, receivedFrom: new Date("2026-11-29T00:00:00Z"), dueAt: minutesLater(-120) });
+    await prisma.$executeRaw`UPDATE alerts SET priority = 1 WHERE id = ANY(${ids}::uuid[])`;
+    const urgent = await createAlert(prisma, model.id, { externalId: "urgent-late", dueAt: minutesLater(-1) });
+    await prisma.$executeRaw`UPDATE alerts SET priority = 1000000 WHERE id = ${urgent.id}::uuid`;
+    const taken = await claimNextAlert(database, { actor: ada, now: NOW });
+    expect(taken!.id).toBe(urgent.id);
+    const [{ unmarked }] = await prisma.$queryRaw<{ unmarked: number }[]>`
+      SELECT count(*)::int AS unmarked FROM alerts WHERE state = 'waiting' AND NOT past_due AND due_at <= ${NOW}`;
+    expect(unmarked).toBe(0);
+  });
+});
+
 describe("leases", () => {
   it("an expired lease returns the alert to the queue, audited, and someone else can take it", async () => {
     await setQueue({ claimLeaseMinutes: 30 });
