@@ -36,9 +36,16 @@ function luhn(digits: string): boolean {
 /** Every 13–19 digit window of each digit run (single spaces or hyphens allowed) that passes Luhn.
  * Runs that touch a hexadecimal character are parts of hashes or ids, not card numbers. The migration
  * history (timestamps as names) is the tool's bookkeeping, not application data, and is left out. */
+/** 8-4-4-4-12 hex digits: the ids the database generates. */
+const UUID_PATTERN = /[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}/gi;
+
 function luhnCandidates(text: string): string[] {
   const found: string[] = [];
-  for (const match of text.matchAll(/(?<![0-9A-Fa-f])[0-9](?:[ -]?[0-9]){12,}(?![0-9A-Fa-f])/g)) {
+  // A random UUID whose first groups happen to be decimal digits ("59079412-3456-4789-…") reads as a
+  // 16-digit run with dashes, and some window of it passes Luhn: the test failed once on a generated id
+  // (by the odds of decimal groups, a few runs in a hundred). A UUID is 32 hex digits, no card number's
+  // shape, so ids are left out of the scan.
+  for (const match of text.replace(UUID_PATTERN, " ").matchAll(/(?<![0-9A-Fa-f])[0-9](?:[ -]?[0-9]){12,}(?![0-9A-Fa-f])/g)) {
     const digits = match[0].replace(/[ -]/g, "");
     for (let start = 0; start + 13 <= digits.length; start++) {
       for (let length = 13; length <= 19 && start + length <= digits.length; length++) {
