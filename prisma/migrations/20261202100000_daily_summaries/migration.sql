@@ -96,20 +96,21 @@ CREATE TABLE reviewer_day_marks (
 );
 
 -- Statement-level triggers with transition tables: one INSERT of marks per statement, however many
--- rows it wrote (an ingest batch of 10,000 alerts adds one mark per model version and day).
+-- rows it wrote (an ingest batch of 10,000 alerts adds one mark per model version and day). A
+-- function serves insert and delete alike: each trigger names its transition table the same.
 
-CREATE FUNCTION mark_days_of_inserted_alerts() RETURNS trigger LANGUAGE plpgsql AS $$
+CREATE FUNCTION mark_days_of_alerts() RETURNS trigger LANGUAGE plpgsql AS $$
 BEGIN
   INSERT INTO model_version_day_marks (model_version_id, day)
-  SELECT DISTINCT model_version_id, (received_at AT TIME ZONE 'UTC')::date FROM inserted_alerts;
+  SELECT DISTINCT model_version_id, (received_at AT TIME ZONE 'UTC')::date FROM changed_alerts;
   RETURN NULL;
 END $$;
 
 CREATE TRIGGER alerts_mark_days_on_insert AFTER INSERT ON alerts
-  REFERENCING NEW TABLE AS inserted_alerts FOR EACH STATEMENT EXECUTE FUNCTION mark_days_of_inserted_alerts();
+  REFERENCING NEW TABLE AS changed_alerts FOR EACH STATEMENT EXECUTE FUNCTION mark_days_of_alerts();
 -- Alerts are not deleted in use; a deletion (a test's clean-up, a retention job) still marks its days.
 CREATE TRIGGER alerts_mark_days_on_delete AFTER DELETE ON alerts
-  REFERENCING OLD TABLE AS inserted_alerts FOR EACH STATEMENT EXECUTE FUNCTION mark_days_of_inserted_alerts();
+  REFERENCING OLD TABLE AS changed_alerts FOR EACH STATEMENT EXECUTE FUNCTION mark_days_of_alerts();
 
 -- Only changes a summary counts mark a day: claiming, releasing, leases and the overdue mark do not.
 -- Transition tables have no statistics: the planner joined the old and new rows of an 80,000-row
@@ -164,15 +165,15 @@ CREATE TRIGGER labels_mark_days_on_delete AFTER DELETE ON labels
 CREATE FUNCTION mark_days_of_outcomes() RETURNS trigger LANGUAGE plpgsql AS $$
 BEGIN
   INSERT INTO reviewer_day_marks (day)
-  SELECT (n.closed_at AT TIME ZONE 'UTC')::date FROM new_outcomes n
+  SELECT (n.closed_at AT TIME ZONE 'UTC')::date FROM changed_outcomes n
    UNION
   SELECT (f.closed_at AT TIME ZONE 'UTC')::date
-    FROM new_outcomes n JOIN outcomes f ON f.alert_id = n.alert_id AND f.review_round = 1
+    FROM changed_outcomes n JOIN outcomes f ON f.alert_id = n.alert_id AND f.review_round = 1
    WHERE n.review_round = 2;
   RETURN NULL;
 END $$;
 
 CREATE TRIGGER outcomes_mark_days_on_insert AFTER INSERT ON outcomes
-  REFERENCING NEW TABLE AS new_outcomes FOR EACH STATEMENT EXECUTE FUNCTION mark_days_of_outcomes();
+  REFERENCING NEW TABLE AS changed_outcomes FOR EACH STATEMENT EXECUTE FUNCTION mark_days_of_outcomes();
 CREATE TRIGGER outcomes_mark_days_on_delete AFTER DELETE ON outcomes
-  REFERENCING OLD TABLE AS new_outcomes FOR EACH STATEMENT EXECUTE FUNCTION mark_days_of_outcomes();
+  REFERENCING OLD TABLE AS changed_outcomes FOR EACH STATEMENT EXECUTE FUNCTION mark_days_of_outcomes();
