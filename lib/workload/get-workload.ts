@@ -73,15 +73,8 @@ interface OpenRow {
   upcomingMs: number[];
 }
 
-interface BacklogRow {
-  ageBand: number;
-  elBand: number;
-  state: string;
-  overdue: boolean;
-  currency: string;
-  alerts: number;
-  expectedLoss: number;
-}
+/** An open-alerts row with its hour of age folded into an age band (1 = first band). */
+type BacklogRow = Omit<OpenRow, "hour" | "upcomingMs"> & { ageBand: number };
 
 interface AnalystRow {
   userId: string;
