@@ -68,12 +68,14 @@ function literal(value: string | null): string {
   return value === null ? "NULL" : pg.escapeLiteral(value);
 }
 
-/** A queue setting read in SQL, falling back to the default when the stored group lacks it (settingsGroupOf's rule for a whole group). */
+/**
+ * A whole-number queue setting read in SQL from the stored group (`q.queue`, jsonb), or its default
+ * from code when the group lacks it. Stored groups are validated on write (updateSettings).
+ */
 function queueSettingSql(key: "maxHeldPerAnalyst" | "claimLeaseMinutes"): string {
   const fallback = defaultSettings.queue[key];
   if (!Number.isSafeInteger(fallback)) throw new AppError("invalid_input", `claim: the default ${key} is not a whole number`);
-  return `coalesce((SELECT CASE WHEN jsonb_typeof(value->'${key}') = 'number' THEN (value->>'${key}')::int END
-                      FROM settings WHERE key = 'queue'), ${fallback})`;
+  return `coalesce(CASE WHEN jsonb_typeof(q.queue->'${key}') = 'number' THEN (q.queue->>'${key}')::int END, ${fallback})`;
 }
 
 /**
@@ -87,7 +89,8 @@ function queueSettingSql(key: "maxHeldPerAnalyst" | "claimLeaseMinutes"): string
  *      checks it parses).
  * The claim stands aside (`housekeepingDue`) when a lease has run out or more fell due than one
  * sweep marks: the caller then does that housekeeping through the domain functions and sends the
- * message again. (A due alert another claimer's sweep holds locked is marked by that sweep.) Settings are read per claim, so a change applies to the very next one.
+ * message again. (A due alert another claimer's sweep holds locked is marked by that sweep.)
+ * Settings are read per claim, so a change applies to the very next one.
  * A message of several statements cannot carry parameters, so values are written as literals: the
  * user id checked as a UUID, numbers checked as whole numbers, text through pg's escapeLiteral.
  */
@@ -116,7 +119,8 @@ function claimMessage(values: {
     WITH settings_now AS (
       SELECT ${queueSettingSql("maxHeldPerAnalyst")} AS max_held,
              ${now} + make_interval(mins => ${queueSettingSql("claimLeaseMinutes")}) AS lease_expires_at,
-             ${values.afterHousekeeping ? "false" : housekeepingDue} AS housekeeping_due),
+             ${values.afterHousekeeping ? "false" : housekeepingDue} AS housekeeping_due
+        FROM (SELECT (SELECT value FROM settings WHERE key = 'queue') AS queue) q),
     held AS (
       SELECT count(*)::int AS n FROM alerts WHERE assigned_to_id = ${user}::uuid AND state = 'in_review'),
     next AS (
