@@ -26,6 +26,9 @@ test("an admin adds a person, who signs in and changes their own password", asyn
   await expect(page.getByRole("status").filter({ hasText: `Created ${name} (${email}) as auditor.` })).toBeVisible();
   await expect(page.getByRole("table", { name: "People who can sign in" }).getByRole("row", { name: new RegExp(name) })).toBeVisible();
   await page.getByRole("button", { name: "Sign out" }).click();
+  // Wait for the sign-out to land: going to /sign-in while it is still under way found the admin
+  // still signed in (and sent to the queue) in one CI run.
+  await expect(page).toHaveURL(/\/sign-in$/);
 
   await signIn(page, email, "first-password-123");
   await page.getByRole("link", { name: /Your account/ }).click();
