@@ -90,6 +90,9 @@ function queueSettingSql(key: "maxHeldPerAnalyst" | "claimLeaseMinutes"): string
  * The claim stands aside (`housekeepingDue`) when a lease has run out or more fell due than one
  * sweep marks: the caller then does that housekeeping through the domain functions and sends the
  * message again. (A due alert another claimer's sweep holds locked is marked by that sweep.)
+ * When nothing was claimed below the hold limit, `othersHoldWaiting` says whether alerts still wait
+ * (each locked by another transaction, which SKIP LOCKED stepped over), so the caller can tell a
+ * busy queue from an empty one.
  * Settings are read per claim, so a change applies to the very next one.
  * A message of several statements cannot carry parameters, so values are written as literals: the
  * user id checked as a UUID, numbers checked as whole numbers, text through pg's escapeLiteral.
@@ -145,13 +148,31 @@ function claimMessage(values: {
                                 'how', 'take_next'),
              ${literal(values.requestId)}, ${literal(values.ipAddress)}
         FROM claimed c)
-    SELECT (SELECT n FROM held) AS held, s.max_held AS "maxHeld", s.housekeeping_due AS "housekeepingDue", c.*
+    SELECT (SELECT n FROM held) AS held, s.max_held AS "maxHeld", s.housekeeping_due AS "housekeepingDue",
+           CASE WHEN c.id IS NULL AND NOT s.housekeeping_due AND (SELECT n FROM held) < s.max_held
+                THEN EXISTS (SELECT 1 FROM alerts WHERE state = 'waiting') ELSE false END AS "othersHoldWaiting",
+           c.*
       FROM settings_now s LEFT JOIN claimed c ON true`;
 }
 
-type ClaimAnswer = ClaimedAlertRow & { held: number; maxHeld: number; housekeepingDue: boolean; id: string | null };
+type ClaimAnswer = ClaimedAlertRow & { held: number; maxHeld: number; housekeepingDue: boolean; othersHoldWaiting: boolean; id: string | null };
 
-/** The claimed alert, or null when no alert is waiting (or every waiting one is being claimed). */
+/**
+ * Pauses (ms) before sending the claim again when alerts wait but every one of them is locked by
+ * another transaction: claims in flight (whose alerts are no longer waiting once they commit), a
+ * sweep marking a batch that just fell due (it holds them until its claim commits), a refit
+ * re-deriving priorities. Without a second try, sixteen analysts starting on a batch that fell due
+ * at once were told nothing was waiting while hundreds were. About a third of a second in all;
+ * after that the analyst is told the queue is busy, not that it is empty.
+ */
+const BUSY_QUEUE_PAUSES_MS = [2, 5, 10, 20, 40, 80, 160] as const;
+
+const pause = (ms: number) => new Promise<void>((resolve) => setTimeout(resolve, ms));
+
+/**
+ * The claimed alert, or null when no alert is waiting. When alerts wait but others hold every one of
+ * them locked, it tries again (BUSY_QUEUE_PAUSES_MS) and then refuses with a conflict.
+ */
 export async function claimNextAlert(databases: ClaimDatabases, options: ClaimNextAlertOptions): Promise<ClaimedAlert | null> {
   const { actor, now } = options;
   assertMayWorkAlerts(actor);
@@ -180,10 +201,18 @@ export async function claimNextAlert(databases: ClaimDatabases, options: ClaimNe
     await markOverdueAlerts(prisma, { now });
     answer = await send(true);
   }
-  const { held, maxHeld, housekeepingDue, ...claimed } = answer;
+  for (const ms of BUSY_QUEUE_PAUSES_MS) {
+    if (!answer.othersHoldWaiting) break;
+    await pause(ms);
+    answer = await send(true);
+  }
+  const { held, maxHeld, housekeepingDue, othersHoldWaiting, ...claimed } = answer;
   if (claimed.id === null) {
     const refusal = holdLimitReached(held, maxHeld);
     if (refusal) throw refusal;
+    if (othersHoldWaiting) {
+      throw new AppError("conflict", "Every waiting alert is being taken or updated by someone else at this moment. Try again in a few seconds.");
+    }
     return null;
   }
   // Committed: link the staged event into the audit chain in the background.

@@ -1,6 +1,7 @@
 // Claiming: two analysts never get the same alert, leases run out, releases and hold limits work,
 // and only the holder may close an alert.
 import { beforeAll, beforeEach, describe, expect, it } from "vitest";
+import pg from "pg";
 import { useTestDatabase } from "@/tests/support/test-database";
 import { createAlert, createModelVersion, createUser, createWaitingAlerts, type TestModelVersion } from "@/tests/support/factories";
 import type { UserActor } from "@/lib/auth/actor";
@@ -177,6 +178,59 @@ describe("hold limit", () => {
     await claimNextAlert(database, { actor: ada, now: NOW });
     await setQueue({ maxHeldPerAnalyst: 1 });
     await expect(claimNextAlert(database, { actor: ada, now: NOW })).rejects.toMatchObject({ code: "conflict" });
+  });
+});
+
+describe("every waiting alert locked by another transaction for a moment", () => {
+  /** Locks the waiting alerts in a transaction of its own (as a sweep, a refit or claims in flight do); `end` commits it. */
+  async function lockWaitingAlerts(change?: string) {
+    // A connection of its own, so that the claim finds the pool's warm connection idle.
+    const client = new pg.Client({ connectionString: database.url });
+    await client.connect();
+    await client.query("BEGIN");
+    await client.query("SELECT id FROM alerts WHERE state = 'waiting' FOR UPDATE");
+    if (change) await client.query(change);
+    return {
+      end: async () => {
+        await client.query("COMMIT");
+        await client.end();
+      },
+    };
+  }
+
+  // A claim on the empty queue first, so that the claim under test reaches the database well within
+  // the 30 ms the lock is held (a first claim also opens its pooled connection).
+  beforeEach(async () => {
+    expect(await claimNextAlert(database, { actor: ada, now: NOW })).toBeNull();
+  });
+
+  it("waits for a sweep that holds them and takes the top alert, instead of saying nothing waits", async () => {
+    const { high } = await threeAlerts();
+    const lock = await lockWaitingAlerts();
+    const claim = claimNextAlert(database, { actor: ada, now: NOW });
+    await new Promise((resolve) => setTimeout(resolve, 30));
+    await lock.end();
+    expect((await claim)?.id).toBe(high);
+  });
+
+  it("when the ones held were being claimed, says nothing waits once those claims commit", async () => {
+    await threeAlerts();
+    const lock = await lockWaitingAlerts(`UPDATE alerts SET state = 'in_review', assigned_to_id = '${ben.id}', claimed_at = now(), lease_expires_at = now() + interval '1 hour'`);
+    const claim = claimNextAlert(database, { actor: ada, now: NOW });
+    await new Promise((resolve) => setTimeout(resolve, 30));
+    await lock.end();
+    expect(await claim).toBeNull();
+  });
+
+  it("held longer than its tries: refuses with a conflict that says the queue is busy, not empty", async () => {
+    const { high } = await threeAlerts();
+    const lock = await lockWaitingAlerts();
+    try {
+      await expect(claimNextAlert(database, { actor: ada, now: NOW })).rejects.toMatchObject({ code: "conflict", message: expect.stringMatching(/someone else at this moment/) });
+    } finally {
+      await lock.end();
+    }
+    expect((await claimNextAlert(database, { actor: ada, now: NOW }))?.id).toBe(high);
   });
 });
 
