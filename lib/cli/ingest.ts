@@ -85,7 +85,7 @@ await runCommand(async () => {
     };
     if (kind === "alerts") {
       // Alerts, the bulk of any back-fill, are pipelined: the next batch is checked and priced
-      // while the database stores the one before (lib/ingest/ingest-alerts.ts).
+      // while the database stores the ones before, two side by side (lib/ingest/ingest-alerts.ts).
       const batchesOfFile = (function* () {
         for (const offset of offsets) yield { rows: rows.slice(offset, offset + size), rowOffset: offset, now: new Date() };
       })();

@@ -222,4 +222,27 @@ describe("a file in pipelined batches (ingestAlertBatches, as npm run ingest sen
     const ids = batches.flat().map((row) => row.externalId as string);
     expect(await storedCount(ids)).toBe(4);
   });
+
+  it("batches stored side by side still keep the file's earlier row when a later batch repeats its externalId with other content", async () => {
+    // The repeated key is the last row of a large batch and the first of the next: stored side by
+    // side without care, the next batch's INSERT reaches the key long before the first one's does.
+    const first = Array.from({ length: 3_000 }, () => alertRow());
+    const repeated = first[first.length - 1];
+    const second = [alertRow({ ...repeated, amountMinor: 777_777 }), ...Array.from({ length: 20 }, () => alertRow())];
+    const third = [alertRow()];
+    const answers = await ingestAlertBatches(
+      prisma,
+      [first, second, third].map((rows, index) => ({ rows, rowOffset: [0, 3_000, 3_021][index], now })),
+      { actor: loader, channel: "command_line" },
+    );
+    expect(answers.map(({ accepted, conflict }) => ({ accepted, conflict }))).toEqual([
+      { accepted: 3_000, conflict: 0 },
+      { accepted: 20, conflict: 1 },
+      { accepted: 1, conflict: 0 },
+    ]);
+    // The conflict is reported on the later row (the first of the second batch), and the earlier content was kept.
+    expect(answers[1].conflicts[0].row).toBe(3_000);
+    const stored = await prisma.alert.findUniqueOrThrow({ where: { portfolioKey_externalId: { portfolioKey: "default", externalId: repeated.externalId as string } } });
+    expect(stored.amountMinor).toBe(BigInt(repeated.amountMinor as number));
+  });
 });
