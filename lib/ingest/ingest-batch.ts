@@ -4,6 +4,7 @@
 import "server-only";
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
 import { auditActorOf, type Actor } from "@/lib/auth/actor";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditContext } from "@/lib/audit/schemas";
@@ -59,9 +60,12 @@ export interface IngestCommonOptions {
   rowOffset?: number;
 }
 
-/** Runs `work` in its own transaction, or inside the caller's when `db` already is one. */
+/**
+ * Runs `work` in its own transaction, or inside the caller's when `db` already is one (told apart
+ * as lib/db/in-transaction.ts does: Prisma 7's transaction handle has `$transaction` too).
+ */
 export function inBatchTransaction<T>(db: DbOrTx, work: (tx: Prisma.TransactionClient) => Promise<T>): Promise<T> {
-  return "$transaction" in db ? db.$transaction(work, BATCH_TRANSACTION_OPTIONS) : work(db);
+  return inTransaction(db, work, BATCH_TRANSACTION_OPTIONS);
 }
 
 /** The external id of a raw row when it is a plain, safe string (never a card-number look-alike). */
