@@ -161,7 +161,6 @@ export async function* streamLabelExportRows(pool: pg.Pool, options: StreamLabel
   const { text, countText, values } = labelExportQuery(options.choices);
   const client = await pool.connect();
   let cursor: Cursor<LabelExportRow> | undefined;
-  let pending: Promise<LabelExportRow[]> | undefined;
   let open = false;
   let broken = false;
   try {
@@ -175,15 +174,9 @@ export async function* streamLabelExportRows(pool: pg.Pool, options: StreamLabel
       await options.onCount(Number(counted.rows[0].n));
     }
     cursor = client.query(new Cursor<LabelExportRow>(text, values));
-    const batchSize = options.batchSize ?? DEFAULT_BATCH_SIZE;
-    // The next batch is asked for before this one is handed on, so that PostgreSQL produces and sends
-    // it while Node formats this one: two cores at work instead of taking turns.
-    pending = cursor.read(batchSize);
     for (;;) {
-      const rows = await pending;
-      pending = undefined;
+      const rows = await cursor.read(options.batchSize ?? DEFAULT_BATCH_SIZE);
       if (rows.length === 0) break;
-      pending = cursor.read(batchSize);
       yield rows;
     }
     await cursor.close();
@@ -194,9 +187,7 @@ export async function* streamLabelExportRows(pool: pg.Pool, options: StreamLabel
     broken = true;
     throw error;
   } finally {
-    // Also reached when the consumer stops early (an abandoned download): let the batch asked for
-    // arrive, then close and roll back.
-    if (pending) await pending.catch(() => (broken = true));
+    // Also reached when the consumer stops early (an abandoned download): close and roll back.
     if (cursor) await cursor.close().catch(() => undefined);
     if (open) await client.query("ROLLBACK").catch(() => (broken = true));
     // A connection whose query failed mid-stream is dropped rather than handed to the next caller.

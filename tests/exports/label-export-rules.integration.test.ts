@@ -316,28 +316,3 @@ describe("the row count announced before the rows", () => {
     }
   });
 });
-
-describe("reading ahead", () => {
-  it("a reader that stops after the first batch leaves its connection clean, with no transaction open, and the next export reads every row", async () => {
-    const version = await createModelVersion(database.pool);
-    const reviewer = await createPerson(database.pool);
-    for (let index = 1; index <= 7; index++) {
-      const alert = await createAlert(database.pool, version.id, { occurredAt: at(`2026-01-0${index}T00:00:00Z`) });
-      await createOutcome(database.pool, alert.id, reviewer, { outcome: "legitimate", closedAt: at("2026-01-10T00:00:00Z") });
-    }
-    const choices = labelExportChoicesSchema.parse(choicesFor(version.id, { occurredFrom: at("2026-01-01T00:00:00Z"), occurredTo: at("2026-02-01T00:00:00Z"), asOf: at("2026-03-01T00:00:00Z") }));
-    // The second batch has been asked for when the reader stops.
-    for await (const batch of streamLabelExportRows(database.pool, { choices, batchSize: 2 })) {
-      expect(batch).toHaveLength(2);
-      break;
-    }
-    const { rows: open } = await database.pool.query<{ n: number }>(
-      "SELECT count(*)::int AS n FROM pg_stat_activity WHERE datname = current_database() AND state LIKE 'idle in transaction%'",
-    );
-    expect(open[0].n).toBe(0);
-    const batches: number[] = [];
-    for await (const batch of streamLabelExportRows(database.pool, { choices, batchSize: 2 })) batches.push(batch.length);
-    // Seven rows in batches of two, none lost or repeated by reading ahead.
-    expect(batches).toEqual([2, 2, 2, 1]);
-  });
-});
