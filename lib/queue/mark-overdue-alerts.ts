@@ -21,11 +21,17 @@ export const MARK_BATCH = 1_000;
  * fell due), read the whole table on every claim: 17 ms at 30,000 alerts, 400 ms of every claim's
  * time at 100,000 with 16 claimers (npm run bench). An ordered index scan also marks the index
  * entries of the rows' old versions dead as it passes them, which a bitmap scan does not.
+ * The first due time among unmarked waiting alerts, read first (one probe of the same index, in
+ * due order), switches the scan off when nothing has fallen due — the usual case, before every claim.
+ * Without it the planner, whose picture of the index was of the moment after a mass of alerts had
+ * been marked (many empty pages, few entries), scanned the unmarked part of the queue index instead
+ * and filtered it: 2–3 ms of every claim (EXPLAIN on a 1,000,000-alert bench database).
  */
 export const MARK_OVERDUE_SQL = `
   UPDATE alerts SET past_due = true
    WHERE id = ANY (ARRAY(SELECT id FROM alerts
                           WHERE state = 'waiting' AND NOT past_due AND due_at <= $1
+                            AND (SELECT due_at FROM alerts WHERE state = 'waiting' AND NOT past_due ORDER BY due_at LIMIT 1) <= $1
                           ORDER BY due_at
                           LIMIT ${MARK_BATCH}
                             FOR UPDATE SKIP LOCKED))
