@@ -234,6 +234,24 @@ describe("every waiting alert locked by another transaction for a moment", () =>
   });
 });
 
+describe("the claim's prepared statements", () => {
+  it("are prepared again when the server has dropped them (a pooler in front of it, DISCARD ALL), and the claim goes through", async () => {
+    const { high, middle } = await threeAlerts();
+    // One connection, so that the statements are dropped on the very connection the next claim uses.
+    const pool = new pg.Pool({ connectionString: database.url, max: 1 });
+    try {
+      const handles = { prisma, pool };
+      expect((await claimNextAlert(handles, { actor: ada, now: NOW }))?.id).toBe(high);
+      const [{ n: before }] = (await pool.query<{ n: number }>("SELECT count(*)::int AS n FROM pg_prepared_statements WHERE name LIKE 'triage_desk_take_next_%'")).rows;
+      expect(before).toBe(2);
+      await pool.query("DEALLOCATE ALL");
+      expect((await claimNextAlert(handles, { actor: ada, now: NOW }))?.id).toBe(middle);
+    } finally {
+      await pool.end();
+    }
+  });
+});
+
 describe("more fell due than one sweep marks", () => {
   it("marks every due alert before claiming, so the most urgent overdue alert is taken, not one of the first thousand marked", async () => {
     // 1,004 low-priority alerts fell due two hours ago; the sweep marks a thousand at a time in due
