@@ -316,3 +316,51 @@ describe("the row count announced before the rows", () => {
     }
   });
 });
+
+describe("a large export read in two parts", () => {
+  // The parts split the occurred_at range at the middle of the time that can hold rows (here 1 to 31
+  // January, maturity ending it at asOf on the 21st: the middle is the 11th).
+  it("gives the same rows in the same order as one cursor, with the count announced once, and leaves no transaction open", async () => {
+    const version = await createModelVersion(database.pool);
+    const reviewer = await createPerson(database.pool);
+    const days = [1, 3, 5, 8, 11, 11, 12, 15, 19, 20, 25];
+    for (const [index, day] of days.entries()) {
+      const alert = await createAlert(database.pool, version.id, { occurredAt: at(`2026-01-${String(day).padStart(2, "0")}T${index % 2 ? "00" : "12"}:00:00Z`) });
+      await createOutcome(database.pool, alert.id, reviewer, { outcome: index % 3 ? "legitimate" : "confirmed_fraud", closedAt: at("2026-01-21T00:00:00Z") });
+    }
+    // One exactly at the middle: it belongs to the second part, and to no part twice.
+    const atMiddle = await createAlert(database.pool, version.id, { occurredAt: at("2026-01-11T03:00:00Z") });
+    await createOutcome(database.pool, atMiddle.id, reviewer, { outcome: "legitimate", closedAt: at("2026-01-21T00:00:00Z") });
+    const choices = labelExportChoicesSchema.parse({
+      ...choicesFor(version.id, { occurredFrom: at("2026-01-01T00:00:00Z"), occurredTo: at("2026-02-01T00:00:00Z"), asOf: at("2026-01-21T06:00:00Z") }),
+      maturityDays: 0,
+    });
+    const read = async (twoPartsFromRows: number) => {
+      const rows: LabelExportRow[] = [];
+      const counts: number[] = [];
+      for await (const batch of streamLabelExportRows(database.pool, { choices, batchSize: 3, onCount: (n) => void counts.push(n), twoPartsFromRows })) rows.push(...batch);
+      return { rows, counts };
+    };
+    const whole = await read(Number.MAX_SAFE_INTEGER);
+    const halves = await read(1);
+    // Rows on the 25th are after asOf's maturity cut-off: eleven rows.
+    expect(whole.rows).toHaveLength(11);
+    expect(halves.counts).toEqual([11]);
+    expect(halves.rows).toEqual(whole.rows);
+    // Both parts had rows: the 11th (at and after the middle) opens the second.
+    const occurred = halves.rows.map((row) => row.occurred_at);
+    expect(occurred.filter((instant) => instant < "2026-01-11T03:00:00.000Z").length).toBeGreaterThan(0);
+    expect(occurred.filter((instant) => instant >= "2026-01-11T03:00:00.000Z").length).toBeGreaterThan(0);
+    expect([...occurred].sort()).toEqual(occurred);
+
+    // A reader that stops after the first batch: both connections go back clean.
+    for await (const batch of streamLabelExportRows(database.pool, { choices, batchSize: 3, onCount: () => undefined, twoPartsFromRows: 1 })) {
+      expect(batch).toHaveLength(3);
+      break;
+    }
+    const { rows: open } = await database.pool.query<{ n: number }>(
+      "SELECT count(*)::int AS n FROM pg_stat_activity WHERE datname = current_database() AND state LIKE 'idle in transaction%'",
+    );
+    expect(open[0].n).toBe(0);
+  });
+});
