@@ -15,15 +15,14 @@
 import "server-only";
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
-import { inTransaction, isRootClient } from "@/lib/db/in-transaction";
 import { auditActorOf, type Actor } from "@/lib/auth/actor";
 import { AppError } from "@/lib/errors";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditContext } from "@/lib/audit/schemas";
 import { getSettings } from "@/lib/settings/get-settings";
 import { assertHeldBy } from "@/lib/queue/assert-held-by";
-import { assertMayWorkAlerts, CLAIM_TRANSACTION } from "@/lib/queue/queue-actor";
-import { outcomeSubmissionSchema, type OutcomeValue, type RecordedOutcome } from "@/lib/outcomes/schemas";
+import { assertMayWorkAlerts } from "@/lib/queue/queue-actor";
+import type { OutcomeValue, RecordedOutcome } from "@/lib/outcomes/schemas";
 import {
   assertReasonAllowed,
   handlingSecondsBetween,
@@ -37,7 +36,8 @@ import {
   type LockedAlert,
   type StoredOutcome,
 } from "@/lib/outcomes/outcome-rows";
-import { refitAfterClosing, type AfterCommit } from "@/lib/outcomes/refit-after-closing";
+import type { AfterCommit } from "@/lib/outcomes/refit-after-closing";
+import { parseOutcomeSubmission, recordThenRefit } from "@/lib/outcomes/outcome-submission";
 
 export interface RecordOutcomeOptions {
   actor: Actor;
@@ -57,16 +57,7 @@ export interface RecordOutcomeOptions {
 export async function recordOutcome(db: DbOrTx, options: RecordOutcomeOptions): Promise<RecordedOutcome> {
   const { actor, now } = options;
   assertMayWorkAlerts(actor);
-  const parsed = outcomeSubmissionSchema.safeParse({ alertId: options.alertId, outcome: options.outcome, reason: options.reason, note: options.note ?? null });
-  if (!parsed.success) {
-    if (parsed.error.issues.some((issue) => issue.path[0] === "alertId")) throw new AppError("not_found", "There is no such alert.");
-    throw new AppError(
-      "invalid_input",
-      "The outcome form is not complete.",
-      parsed.error.issues.map((issue) => ({ path: issue.path.join("."), message: issue.message })),
-    );
-  }
-  const submission = parsed.data;
+  const submission = parseOutcomeSubmission(options, "outcome form");
 
   const run = async (tx: Prisma.TransactionClient): Promise<{ recorded: RecordedOutcome; modelVersionId: string }> => {
     const alert = await lockAlertForOutcome(tx, submission.alertId);
@@ -134,12 +125,7 @@ export async function recordOutcome(db: DbOrTx, options: RecordOutcomeOptions): 
   };
 
   // Inside a caller's transaction the caller runs the refit after its commit (see refit-after-closing.ts).
-  if (!isRootClient(db)) return (await run(db)).recorded;
-  const { recorded, modelVersionId } = await inTransaction(db, run, CLAIM_TRANSACTION);
-  if (!recorded.repeated && recorded.alertState === "closed") {
-    await refitAfterClosing(db, { modelVersionId, now, context: options.context, afterCommit: options.afterCommit });
-  }
-  return recorded;
+  return recordThenRefit(db, run, options);
 }
 
 function alreadyReviewed(alert: LockedAlert, first: StoredOutcome, actorId: string): AppError {

@@ -7,15 +7,13 @@
 import "server-only";
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
-import { inTransaction, isRootClient } from "@/lib/db/in-transaction";
 import { auditActorOf, type Actor, type UserActor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
 import { AppError } from "@/lib/errors";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditContext } from "@/lib/audit/schemas";
 import { getSettings } from "@/lib/settings/get-settings";
-import { CLAIM_TRANSACTION } from "@/lib/queue/queue-actor";
-import { outcomeSubmissionSchema, type OutcomeValue, type RecordedOutcome } from "@/lib/outcomes/schemas";
+import type { OutcomeValue, RecordedOutcome } from "@/lib/outcomes/schemas";
 import {
   assertReasonAllowed,
   handlingSecondsBetween,
@@ -28,7 +26,8 @@ import {
   utcMinute,
   type StoredOutcome,
 } from "@/lib/outcomes/outcome-rows";
-import { refitAfterClosing, type AfterCommit } from "@/lib/outcomes/refit-after-closing";
+import type { AfterCommit } from "@/lib/outcomes/refit-after-closing";
+import { parseOutcomeSubmission, recordThenRefit } from "@/lib/outcomes/outcome-submission";
 
 export interface RecordSecondReviewOptions {
   actor: Actor;
@@ -61,16 +60,7 @@ function assertMaySecondReview(actor: Actor): asserts actor is UserActor {
 export async function recordSecondReview(db: DbOrTx, options: RecordSecondReviewOptions): Promise<RecordedSecondReview> {
   const { actor, now } = options;
   assertMaySecondReview(actor);
-  const parsed = outcomeSubmissionSchema.safeParse({ alertId: options.alertId, outcome: options.outcome, reason: options.reason, note: options.note ?? null });
-  if (!parsed.success) {
-    if (parsed.error.issues.some((issue) => issue.path[0] === "alertId")) throw new AppError("not_found", "There is no such alert.");
-    throw new AppError(
-      "invalid_input",
-      "The second-review form is not complete.",
-      parsed.error.issues.map((issue) => ({ path: issue.path.join("."), message: issue.message })),
-    );
-  }
-  const submission = parsed.data;
+  const submission = parseOutcomeSubmission(options, "second-review form");
 
   const run = async (tx: Prisma.TransactionClient): Promise<{ recorded: RecordedSecondReview; modelVersionId: string }> => {
     const alert = await lockAlertForOutcome(tx, submission.alertId);
@@ -158,10 +148,5 @@ export async function recordSecondReview(db: DbOrTx, options: RecordSecondReview
     return { recorded: { ...recorded, decision, firstOutcome: first.outcome }, modelVersionId: alert.modelVersionId };
   };
 
-  if (!isRootClient(db)) return (await run(db)).recorded;
-  const { recorded, modelVersionId } = await inTransaction(db, run, CLAIM_TRANSACTION);
-  if (!recorded.repeated) {
-    await refitAfterClosing(db, { modelVersionId, now, context: options.context, afterCommit: options.afterCommit });
-  }
-  return recorded;
+  return recordThenRefit(db, run, options);
 }
