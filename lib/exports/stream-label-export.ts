@@ -228,7 +228,9 @@ export async function* streamLabelExportRows(pool: pg.Pool, options: StreamLabel
     // Every part's first read is asked for now, so that PostgreSQL computes the later part while the
     // earlier one is written out.
     const firstReads = parts.map((part, index) => {
-      const cursor = clients[index].query(new Cursor<LabelExportRow>(text, [values[0], part.from, part.to, ...values.slice(3)]));
+      // The same statement; only the occurred_at range of its values differs.
+      const partValues = labelExportQuery({ ...options.choices, occurredFrom: part.from, occurredTo: part.to }).values;
+      const cursor = clients[index].query(new Cursor<LabelExportRow>(text, partValues));
       cursors.push(cursor);
       const read = cursor.read(batchSize);
       read.catch(() => undefined); // raised when its turn comes
