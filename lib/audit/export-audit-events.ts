@@ -21,6 +21,7 @@ import type { AuditActor, AuditContext, AuditFilter } from "@/lib/audit/schemas"
 import { Prisma } from "@/lib/generated/prisma/client";
 import { csvField, csvRecord } from "@/lib/csv/rfc4180";
 import { linkStagedAuditEvents } from "@/lib/audit/staged-audit-events";
+import { inTransaction } from "@/lib/db/in-transaction";
 
 export const AUDIT_CSV_COLUMNS = [
   "id",
@@ -97,7 +98,7 @@ export async function exportAuditEvents(db: DbOrTx, options: ExportAuditEventsOp
       event: { action: "audit.exported", payload: { filter: compactAuditFilter(options.filter), rowCount, throughEventId, format: "csv" } },
       context: options.context,
     });
-  const recorded = "$transaction" in db ? await db.$transaction(record) : await record(db);
+  const recorded = await inTransaction(db, record);
 
   const encoder = new TextEncoder();
   let lastId: string | undefined = undefined;

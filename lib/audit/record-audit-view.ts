@@ -9,6 +9,7 @@
 // new view. Exports are never folded this way; each one is recorded (export-audit-events.ts).
 import { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
+import { inTransaction } from "@/lib/db/in-transaction";
 import { compactAuditFilter } from "@/lib/audit/audit-query";
 import { AUDIT_CHAIN_LOCK_KEY, recordAuditEvent } from "@/lib/audit/record-audit-event";
 import type { AuditActor, AuditContext, AuditFilter } from "@/lib/audit/schemas";
@@ -40,5 +41,5 @@ export async function recordAuditView(db: DbOrTx, options: RecordAuditViewOption
     const { id } = await recordAuditEvent(tx, { actor: options.actor, event: { action: "audit.viewed", payload: { filter } }, context: options.context });
     return { recorded: true, eventId: id.toString() };
   };
-  return "$transaction" in db ? db.$transaction(run) : run(db);
+  return inTransaction(db, run);
 }
