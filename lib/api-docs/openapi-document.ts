@@ -126,7 +126,7 @@ export function buildOpenApiDocument(options: { channels: string[] }): JsonSchem
       response: ingestAnswerSchema,
     },
     "GET /api/v1/model-versions": { summary: "The model-version registry (modelName, version, scoreKind, active, calibration state…)." },
-    "POST /api/v1/model-versions": { summary: "Create or update a model version (admins).", body: { schema: schemaOf(modelVersionInputSchema) } },
+    "POST /api/v1/model-versions": { summary: "Create or update a model version (admins). Answers the version, what changed and recomputedAlerts: the waiting alerts re-derived because β or the prior hit rate changed.", body: { schema: schemaOf(modelVersionInputSchema) } },
     "POST /api/v1/model-versions/{id}/refit": { summary: "Refit the calibration map of a model version now and recompute its waiting alerts." },
     "GET /api/v1/alerts/{id}": {
       summary: "Signed-in people only. One alert as the Alert page shows it: facts (masked entity reference), model view and probability source, expected-loss arithmetic, ranked reason codes, outcomes, labels, and the entity's other alerts of the last 90 days.",

@@ -31,7 +31,11 @@ export const auditEventSchema = z.discriminatedUnion("action", [
       rejected: z.number().int(),
     }),
   }),
-  z.object({ action: z.literal("model_version.saved"), payload: z.object({ modelName: z.string(), version: z.string(), changes: z.record(z.string(), z.unknown()) }) }),
+  z.object({
+    action: z.literal("model_version.saved"),
+    // recomputedAlerts: waiting alerts re-derived by the save (β or prior hit rate changed); absent in events saved before it was recorded.
+    payload: z.object({ modelName: z.string(), version: z.string(), changes: z.record(z.string(), z.unknown()), recomputedAlerts: z.number().int().optional() }),
+  }),
   z.object({ action: z.literal("alert.claimed"), payload: z.object({ ...alertRef, leaseExpiresAt: z.string(), how: z.enum(["take_next", "direct"]) }) }),
   z.object({ action: z.literal("alert.released"), payload: z.object({ ...alertRef, reason: z.string() }) }),
   z.object({ action: z.literal("alert.lease_expired"), payload: z.object({ ...alertRef, heldBy: z.string().uuid() }) }),

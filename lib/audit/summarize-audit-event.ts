@@ -77,8 +77,11 @@ function describe(event: ReturnType<typeof auditEventSchema.parse>): string {
       const p = event.payload;
       return `${p.kind} by ${p.channel}: ${p.rows} rows, ${p.accepted} accepted, ${p.duplicate} duplicate, ${p.conflict} conflicting, ${p.rejected} rejected`;
     }
-    case "model_version.saved":
-      return `${event.payload.modelName} ${event.payload.version}: ${Object.keys(event.payload.changes).sort().join(", ") || "no changes"}`;
+    case "model_version.saved": {
+      const p = event.payload;
+      const summary = `${p.modelName} ${p.version}: ${Object.keys(p.changes).sort().join(", ") || "no changes"}`;
+      return p.recomputedAlerts ? `${summary} · ${p.recomputedAlerts} waiting alerts re-derived` : summary;
+    }
     case "alert.claimed":
       return `${event.payload.externalId} ${event.payload.how === "take_next" ? "taken as next" : "opened directly"}, lease until ${utcTime(event.payload.leaseExpiresAt)}`;
     case "alert.released":

@@ -1,5 +1,8 @@
 // Creates a model version or updates an existing one (same model name and version), with a
 // model_version.saved audit event naming what changed. Admins only (and the system, for the demo).
+// A change of the negative sampling rate (β) or the prior hit rate re-derives the version's waiting
+// alerts in the same transaction: without a calibration map their probability, and so their expected
+// loss, due time and place in the queue, come from those two numbers (DESIGN.md §3).
 import "server-only";
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
@@ -7,6 +10,10 @@ import { AppError } from "@/lib/errors";
 import { auditActorOf, type Actor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
 import { recordAuditEvent } from "@/lib/audit/record-audit-event";
+import { inTransaction } from "@/lib/db/in-transaction";
+import { REFIT_TRANSACTION } from "@/lib/calibration/refit-calibration";
+import { recomputeWaitingAlerts } from "@/lib/queue/recompute-waiting-alerts";
+import { getSettings } from "@/lib/settings/get-settings";
 import type { AuditContext } from "@/lib/audit/schemas";
 import { formatFieldPath } from "@/lib/ingest/card-number-guard";
 import { readableIssueMessage } from "@/lib/ingest/validate-rows";
@@ -18,6 +25,8 @@ export interface SaveModelVersionOptions {
   /** Unvalidated: { modelName, version, scoreKind, negativeSamplingRate?, priorHitRate?, alertThreshold, active? }. */
   input: unknown;
   context?: AuditContext;
+  /** When the change applies (due times of re-derived alerts); the clock's now when absent. */
+  now?: Date;
 }
 
 export interface SaveModelVersionResult {
@@ -25,7 +34,12 @@ export interface SaveModelVersionResult {
   created: boolean;
   /** Field → { from, to } for what this save changed; empty when nothing did (and nothing is audited). */
   changes: Record<string, { from: unknown; to: unknown }>;
+  /** Waiting alerts of this version re-derived because β or the prior hit rate changed (0 otherwise). */
+  recomputedAlerts: number;
 }
+
+/** The fields that feed a waiting alert's probability when its version has no calibration map. */
+const PROBABILITY_INPUTS = ["negativeSamplingRate", "priorHitRate"] as const;
 
 function assertMayManage(actor: Actor): void {
   if (actor.type === "system") return;
@@ -51,6 +65,7 @@ export async function saveModelVersion(db: DbOrTx, options: SaveModelVersionOpti
       SELECT id FROM model_versions WHERE model_name = ${input.modelName} AND version = ${input.version} FOR UPDATE`;
     const changes: SaveModelVersionResult["changes"] = {};
     let created = false;
+    let recomputedAlerts = 0;
     let id = existing?.id;
 
     if (!existing) {
@@ -74,18 +89,22 @@ export async function saveModelVersion(db: DbOrTx, options: SaveModelVersionOpti
       if (Object.keys(changes).length > 0) {
         await tx.modelVersion.update({ where: { id: existing.id }, data: input });
       }
+      if (PROBABILITY_INPUTS.some((field) => field in changes)) {
+        // Before the audit append: the recompute may wait for rows that claims hold (recompute-waiting-alerts.ts).
+        recomputedAlerts = await recomputeWaitingAlerts(tx, { now: options.now ?? new Date(), settings: await getSettings(tx), modelVersionId: existing.id });
+      }
     }
 
     if (Object.keys(changes).length > 0) {
       await recordAuditEvent(tx, {
         actor: auditActorOf(options.actor),
-        event: { action: "model_version.saved", payload: { modelName: input.modelName, version: input.version, changes } },
+        event: { action: "model_version.saved", payload: { modelName: input.modelName, version: input.version, changes, recomputedAlerts } },
         subject: { type: "model_version", id: id! },
         context: options.context,
       });
     }
     const modelVersion = await findModelVersionByName(tx, { modelName: input.modelName, version: input.version });
-    return { modelVersion: modelVersion!, created, changes };
+    return { modelVersion: modelVersion!, created, changes, recomputedAlerts };
   };
-  return "$transaction" in db ? db.$transaction(run) : run(db);
+  return inTransaction(db, run, REFIT_TRANSACTION);
 }

@@ -21,6 +21,14 @@ describe("audit event summaries", () => {
     expect(summarizeAuditPayload("settings.changed", { key: "queue", before: { order: "a", lease: 15 }, after: { order: "b", lease: 15 } })).toBe("queue: order");
   });
 
+  it("says how many waiting alerts a model-version change re-derived, and reads events saved before that was recorded", () => {
+    const changes = { negativeSamplingRate: { from: 0.1, to: 0.5 }, alertThreshold: { from: 0.3, to: 0.4 } };
+    expect(summarizeAuditPayload("model_version.saved", { modelName: "sampled-gbm", version: "1.0.0", changes, recomputedAlerts: 12 })).toBe(
+      "sampled-gbm 1.0.0: alertThreshold, negativeSamplingRate · 12 waiting alerts re-derived",
+    );
+    expect(summarizeAuditPayload("model_version.saved", { modelName: "sampled-gbm", version: "1.0.0", changes })).toBe("sampled-gbm 1.0.0: alertThreshold, negativeSamplingRate");
+  });
+
   it("describes a view or an export by its filter", () => {
     expect(summarizeAuditPayload("audit.viewed", { filter: { preset: "cleared_by", actor: "kim@example.org" } })).toBe("preset cleared_by, actor kim@example.org");
     expect(summarizeAuditPayload("audit.exported", { filter: {}, rowCount: 12, throughEventId: "40", format: "csv" })).toBe("12 rows (no filter)");

@@ -61,3 +61,42 @@ describe("the model-version registry", () => {
     expect(active.map((version) => version.modelName)).toEqual(["txn-classifier"]);
   });
 });
+
+describe("changing what an uncalibrated version's probability comes from", () => {
+  // Undersampling correction p = β·s / (β·s − s + 1): Dal Pozzolo, Caelen, Johnson, Bontempi 2015,
+  // "Calibrating Probability with Undersampling for Unbalanced Classification" (as DESIGN.md cites it).
+  // s = 0.5: β = 0.1 gives 0.05 / 0.55 = 1/11, β = 0.5 gives 0.25 / 0.75 = 1/3.
+  const now = new Date("2026-12-01T12:00:00Z");
+
+  it("re-derives the version's waiting alerts when β changes, so the queue order follows the new probability", async () => {
+    const admin = await createUser(prisma, "rui.admin@example.test", "admin");
+    const sampled = { modelName: "sampled-gbm", version: "1.0.0", scoreKind: "probability", negativeSamplingRate: 0.1, alertThreshold: 0.3 };
+    await saveModelVersion(prisma, { actor: admin, input: sampled });
+    await saveModelVersion(prisma, { actor: admin, input: { modelName: "plain-gbm", version: "1.0.0", scoreKind: "probability", alertThreshold: 0.1 } });
+    const fromSampled = alertRow({ modelName: "sampled-gbm", modelVersion: "1.0.0", score: 0.5 });
+    const fromPlain = alertRow({ modelName: "plain-gbm", modelVersion: "1.0.0", score: 0.2 });
+    await ingestAlerts(prisma, { actor: loader, rows: [fromSampled, fromPlain], channel: "api", now });
+    const read = async (externalId: unknown) =>
+      prisma.alert.findFirstOrThrow({ where: { externalId: String(externalId) }, select: { probability: true, priority: true } });
+
+    // Same amount: the plain version's 0.2 outranks the sampled version's 0.5 corrected to 1/11.
+    const before = await read(fromSampled.externalId);
+    expect(before.probability).toBeCloseTo(1 / 11, 9);
+    expect(before.priority!).toBeLessThan((await read(fromPlain.externalId)).priority!);
+
+    const saved = await saveModelVersion(prisma, { actor: admin, input: { ...sampled, negativeSamplingRate: 0.5 }, now });
+    expect(saved).toMatchObject({ changes: { negativeSamplingRate: { from: 0.1, to: 0.5 } }, recomputedAlerts: 1 });
+    const after = await read(fromSampled.externalId);
+    expect(after.probability).toBeCloseTo(1 / 3, 9);
+    expect(after.priority!).toBeGreaterThan((await read(fromPlain.externalId)).priority!);
+
+    const [event] = await prisma.auditEvent.findMany({ where: { action: "model_version.saved", subjectId: saved.modelVersion.id }, orderBy: { id: "desc" }, take: 1 });
+    expect(event.payload).toMatchObject({ changes: { negativeSamplingRate: { from: 0.1, to: 0.5 } }, recomputedAlerts: 1 });
+  });
+
+  it("leaves the queue alone when only the threshold or the active flag changes", async () => {
+    const admin = await createUser(prisma, "lia.admin@example.test", "admin");
+    const saved = await saveModelVersion(prisma, { actor: admin, input: { modelName: "sampled-gbm", version: "1.0.0", scoreKind: "probability", negativeSamplingRate: 0.5, alertThreshold: 0.4 } });
+    expect(saved).toMatchObject({ changes: { alertThreshold: { from: 0.3, to: 0.4 } }, recomputedAlerts: 0 });
+  });
+});

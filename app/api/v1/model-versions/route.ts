@@ -9,7 +9,7 @@ export const GET = apiRoute("GET /api/v1/model-versions", async (request) => {
   return { modelVersions: await listModelVersions(db(), { activeOnly }) };
 });
 
-export const POST = apiRoute("POST /api/v1/model-versions", async (request, { actor, context }) => {
-  const result = await saveModelVersion(db(), { actor, input: await readJsonBody(request), context });
+export const POST = apiRoute("POST /api/v1/model-versions", async (request, { actor, context, now }) => {
+  const result = await saveModelVersion(db(), { actor, input: await readJsonBody(request), context, now });
   return Response.json(result, { status: result.created ? 201 : 200 });
 });
