@@ -6,6 +6,7 @@ import { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
 import { auditActions, clearingActions, type AuditFilter, type AuditPage } from "@/lib/audit/schemas";
 import { linkStagedAuditEvents } from "@/lib/audit/staged-audit-events";
+import { AUDIT_EVENT_COLUMNS, type AuditEventRow } from "@/lib/audit/audit-event-row";
 
 export interface AuditEventView {
   id: string;
@@ -137,25 +138,7 @@ export function auditFilterSql(resolved: ResolvedAuditFilter): Prisma.Sql {
   return conditions.length === 0 ? Prisma.sql`TRUE` : Prisma.join(conditions, " AND ");
 }
 
-interface Row {
-  id: bigint;
-  occurred_at: Date;
-  actor_type: AuditEventView["actorType"];
-  actor_id: string | null;
-  actor_label: string;
-  action: string;
-  subject_type: string | null;
-  subject_id: string | null;
-  payload: unknown;
-  request_id: string | null;
-  ip_address: string | null;
-  prev_hash: string;
-  hash: string;
-}
-
-export const AUDIT_EVENT_COLUMNS = Prisma.sql`id, occurred_at, actor_type, actor_id, actor_label, action, subject_type, subject_id, payload, request_id, ip_address, prev_hash, hash`;
-
-export function toAuditEventView(row: Row): AuditEventView {
+export function toAuditEventView(row: AuditEventRow): AuditEventView {
   return {
     id: row.id.toString(),
     occurredAt: row.occurred_at,
@@ -182,7 +165,7 @@ export async function selectAuditEvents(
   const bounds: Prisma.Sql[] = [auditFilterSql(resolved)];
   if (options.afterId) bounds.push(Prisma.sql`id > ${BigInt(options.afterId)}`);
   if (options.beforeId) bounds.push(Prisma.sql`id < ${BigInt(options.beforeId)}`);
-  const rows = await db.$queryRaw<Row[]>`
+  const rows = await db.$queryRaw<AuditEventRow[]>`
     SELECT ${AUDIT_EVENT_COLUMNS} FROM audit_events
      WHERE ${Prisma.join(bounds, " AND ")}
      ORDER BY id ${options.order === "asc" ? Prisma.sql`ASC` : Prisma.sql`DESC`}

@@ -9,6 +9,7 @@
 import type { DbOrTx } from "@/lib/db/client";
 import { auditEventHash, GENESIS_HASH } from "@/lib/audit/audit-hash";
 import { linkStagedAuditEvents } from "@/lib/audit/staged-audit-events";
+import { AUDIT_EVENT_COLUMNS, type AuditEventRow } from "@/lib/audit/audit-event-row";
 
 export interface BrokenLink {
   /** The first event that fails, or null when what fails is a missing anchor. */
@@ -35,22 +36,6 @@ export interface VerifyAuditChainOptions {
   anchors?: string[];
 }
 
-interface Row {
-  id: bigint;
-  occurred_at: Date;
-  actor_type: string;
-  actor_id: string | null;
-  actor_label: string;
-  action: string;
-  subject_type: string | null;
-  subject_id: string | null;
-  payload: unknown;
-  request_id: string | null;
-  ip_address: string | null;
-  prev_hash: string;
-  hash: string;
-}
-
 export async function verifyAuditChain(db: DbOrTx, options: VerifyAuditChainOptions = {}): Promise<AuditChainReport> {
   // Staged events (lib/audit/staged-audit-events.ts) are linked first, so the report covers them.
   await linkStagedAuditEvents(db);
@@ -62,10 +47,8 @@ export async function verifyAuditChain(db: DbOrTx, options: VerifyAuditChainOpti
   let lastId: bigint | null = null;
   for (;;) {
     // Keyset paging keeps memory flat however long the log is.
-    const rows: Row[] = await db.$queryRaw<Row[]>`
-      SELECT id, occurred_at, actor_type, actor_id, actor_label, action, subject_type, subject_id,
-             payload, request_id, ip_address, prev_hash, hash
-        FROM audit_events WHERE id > ${lastId ?? BigInt(0)} ORDER BY id LIMIT ${batchSize}`;
+    const rows: AuditEventRow[] = await db.$queryRaw<AuditEventRow[]>`
+      SELECT ${AUDIT_EVENT_COLUMNS} FROM audit_events WHERE id > ${lastId ?? BigInt(0)} ORDER BY id LIMIT ${batchSize}`;
     if (rows.length === 0) break;
     for (const row of rows) {
       const afterId = lastId === null ? null : lastId.toString();
