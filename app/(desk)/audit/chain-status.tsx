@@ -1,18 +1,33 @@
 // The chain's state at the top of the Audit trail, streamed in after the table: verifying walks
-// every event, which takes a moment on a long log and should not hold the filters back.
+// the events, which takes a moment on a long log and should not hold the filters back. Between full
+// walks (lib/audit/audit-chain-status.ts) it walks on from the last one and says so.
 import Link from "next/link";
 import { db } from "@/lib/db/client";
-import { verifyAuditChain } from "@/lib/audit/verify-audit-chain";
+import { checkAuditChainForScreen } from "@/lib/audit/audit-chain-status";
 
-export async function ChainStatus() {
-  const report = await verifyAuditChain(db());
+const utcMinute = (instant: Date) => `${instant.toISOString().slice(0, 16).replace("T", " ")} UTC`;
+
+/** `fullWalkHref`: this page with the request for a full walk. */
+export async function ChainStatus({ full, fullWalkHref }: { full: boolean; fullWalkHref: string }) {
+  const report = await checkAuditChainForScreen(db(), { now: new Date(), full });
   if (report.intact) {
     return (
       <div role="status" className="space-y-1">
-        <p className="text-sm">
-          <span className="font-semibold text-fine">Chain verified:</span> {report.verified.toLocaleString("en")} events, each hash recomputed from the
-          first event on.
-        </p>
+        {report.resumedAfterId === null ? (
+          <p className="text-sm">
+            <span className="font-semibold text-fine">Chain verified:</span> {report.verified.toLocaleString("en")} events, each hash recomputed from the
+            first event on.
+          </p>
+        ) : (
+          <p className="text-sm">
+            <span className="font-semibold text-fine">Chain verified:</span> {report.verified.toLocaleString("en")} events. Those up to event{" "}
+            {report.resumedAfterId} were recomputed from the first event on at {utcMinute(report.fullWalkAt)}; the {report.walkedNow.toLocaleString("en")}{" "}
+            after it just now.{" "}
+            <Link className="underline" href={fullWalkHref}>
+              Recompute every event now
+            </Link>
+          </p>
+        )}
         <p className="text-xs text-ink-soft">
           Head hash{report.headId ? ` (event ${report.headId})` : ""}:{" "}
           <code className="select-all break-all font-mono text-ink" aria-label="Head hash">

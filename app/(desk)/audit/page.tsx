@@ -27,6 +27,17 @@ const dateInputType = (value: string, errors: string[]) => (value === "" || (DAY
 
 type SearchParams = Record<string, string | string[] | undefined>;
 
+/** The page's own query with a request to recompute every event of the chain (ChainStatus). */
+function fullWalkQuery(raw: SearchParams): string {
+  const query = new URLSearchParams();
+  for (const [name, value] of Object.entries(raw)) {
+    if (name === "verify" || value === undefined) continue;
+    for (const one of Array.isArray(value) ? value : [value]) query.append(name, one);
+  }
+  query.set("verify", "full");
+  return query.toString();
+}
+
 export default async function AuditTrailPage({ searchParams }: { searchParams: Promise<SearchParams> }) {
   const access = await requirePagePermission("audit.view");
   if (!access.allowed) return <NotAllowed role={access.user.role} />;
@@ -72,7 +83,7 @@ export default async function AuditTrailPage({ searchParams }: { searchParams: P
 
       <div className="panel space-y-3 p-3">
         <Suspense fallback={<p className="text-sm text-ink-soft">Verifying the chain…</p>}>
-          <ChainStatus />
+          <ChainStatus full={first("verify") === "full"} fullWalkHref={`/audit?${fullWalkQuery(raw)}`} />
         </Suspense>
         <details className="text-xs text-ink-soft">
           <summary className="cursor-pointer font-semibold text-ink">Why copy the head hash out of the database every day</summary>
