@@ -21,8 +21,8 @@ export async function ChainStatus({ full, fullWalkHref }: { full: boolean; fullW
         ) : (
           <p className="text-sm">
             <span className="font-semibold text-fine">Chain verified:</span> {report.verified.toLocaleString("en")} events. Those up to event{" "}
-            {report.resumedAfterId} were recomputed from the first event on at {utcMinute(report.fullWalkAt)}; the {report.walkedNow.toLocaleString("en")}{" "}
-            after it just now.{" "}
+            {report.resumedAfterId} were recomputed from the first event on at {utcMinute(report.fullWalkAt)};{" "}
+            {report.walkedNow.toLocaleString("en")} {report.walkedNow === 1 ? "event" : "events"} after it, just now.{" "}
             <Link className="underline" href={fullWalkHref}>
               Recompute every event now
             </Link>

@@ -1,0 +1,27 @@
+// The Audit trail's chain check against the demo build: the whole chain is recomputed on request, a
+// view in between recomputes only what was written since and says so, and asks nothing of the reader.
+import { expect, test, type Page } from "@playwright/test";
+import { DEMO_PASSWORD, demoSignIns } from "@/demo-data/people";
+
+async function signIn(page: Page, email: string): Promise<void> {
+  await page.goto("/sign-in");
+  await page.getByLabel("Email").fill(email);
+  await page.getByLabel("Password").fill(DEMO_PASSWORD);
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page.getByRole("heading", { level: 1, name: "Queue" })).toBeVisible();
+}
+
+test("an auditor sees the chain verified, walked in full on request and walked on from there between", async ({ page }) => {
+  await signIn(page, demoSignIns.auditor);
+  await page.goto("/audit?verify=full");
+  const chain = page.getByRole("status").filter({ hasText: "Chain verified" });
+  await expect(chain).toContainText("each hash recomputed from the first event on");
+
+  // The view above was itself recorded: the next view walks on from the full walk and says so.
+  await page.goto("/audit?action=audit.viewed");
+  await expect(chain).toContainText("just now");
+  await expect(chain).toContainText(/recomputed from the first event on at \d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC/);
+  await chain.getByRole("link", { name: "Recompute every event now" }).click();
+  await expect(page).toHaveURL(/action=audit.viewed.*verify=full|verify=full.*action=audit.viewed/);
+  await expect(chain).toContainText("each hash recomputed from the first event on");
+});
