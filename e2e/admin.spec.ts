@@ -1,14 +1,7 @@
 // Admin journeys: people and API clients, against the demo build.
-import { expect, test, type Page } from "@playwright/test";
-import { DEMO_PASSWORD, demoSignIns } from "@/demo-data/people";
-
-async function signIn(page: Page, email: string, password = DEMO_PASSWORD): Promise<void> {
-  await page.goto("/sign-in");
-  await page.getByLabel("Email").fill(email);
-  await page.getByLabel("Password").fill(password);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByRole("heading", { level: 1, name: "Queue" })).toBeVisible();
-}
+import { expect, test } from "@playwright/test";
+import { demoSignIns } from "@/demo-data/people";
+import { signIn } from "@/e2e/support/sign-in";
 
 test("an admin adds a person, who signs in and changes their own password", async ({ page }) => {
   test.slow(); // four password hashes (scrypt, deliberately slow) in one journey

@@ -1,15 +1,8 @@
 // The Audit trail's chain check against the demo build: the whole chain is recomputed on request, a
 // view in between recomputes only what was written since and says so, and asks nothing of the reader.
-import { expect, test, type Page } from "@playwright/test";
-import { DEMO_PASSWORD, demoSignIns } from "@/demo-data/people";
-
-async function signIn(page: Page, email: string): Promise<void> {
-  await page.goto("/sign-in");
-  await page.getByLabel("Email").fill(email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByRole("heading", { level: 1, name: "Queue" })).toBeVisible();
-}
+import { expect, test } from "@playwright/test";
+import { demoSignIns } from "@/demo-data/people";
+import { signIn } from "@/e2e/support/sign-in";
 
 test("an auditor sees the chain verified, walked in full on request and walked on from there between", async ({ page }) => {
   await signIn(page, demoSignIns.auditor);

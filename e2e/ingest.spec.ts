@@ -1,15 +1,8 @@
 // Ingest log journeys against the demo build: a supervisor uploads a large CSV of alerts and sees
 // progress, running totals and the rows that were refused; an auditor reads the log but cannot upload.
-import { expect, test, type Page } from "@playwright/test";
-import { DEMO_PASSWORD, demoSignIns } from "@/demo-data/people";
-
-async function signIn(page: Page, email: string): Promise<void> {
-  await page.goto("/sign-in");
-  await page.getByLabel("Email").fill(email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByRole("heading", { level: 1, name: "Queue" })).toBeVisible();
-}
+import { expect, test } from "@playwright/test";
+import { demoSignIns } from "@/demo-data/people";
+import { signIn } from "@/e2e/support/sign-in";
 
 /** 4,500 alerts of the demo's champion model; two of them are refused (a card number, a bad currency). */
 function alertsCsv(stamp: number): string {

@@ -1,16 +1,9 @@
 // Label exports against the demo build: a supervisor starts an export, watches it finish and
 // downloads the file; an auditor sees past exports but is offered no form.
 import { readFile } from "node:fs/promises";
-import { expect, test, type Page } from "@playwright/test";
-import { DEMO_PASSWORD, demoSignIns } from "@/demo-data/people";
-
-async function signIn(page: Page, email: string): Promise<void> {
-  await page.goto("/sign-in");
-  await page.getByLabel("Email").fill(email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByRole("heading", { level: 1, name: "Queue" })).toBeVisible();
-}
+import { expect, test } from "@playwright/test";
+import { demoSignIns } from "@/demo-data/people";
+import { signIn } from "@/e2e/support/sign-in";
 
 test("a supervisor starts a label export, sees it finish and downloads the CSV", async ({ page }) => {
   await signIn(page, demoSignIns.supervisor);

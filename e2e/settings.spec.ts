@@ -1,15 +1,8 @@
 // Settings journeys: a supervisor changes how the queue is ordered, an auditor can only read, and
 // a refit of a model version's calibration is one button.
-import { expect, test, type Page } from "@playwright/test";
-import { DEMO_PASSWORD, demoSignIns } from "@/demo-data/people";
-
-async function signIn(page: Page, email: string): Promise<void> {
-  await page.goto("/sign-in");
-  await page.getByLabel("Email").fill(email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByRole("heading", { level: 1, name: "Queue" })).toBeVisible();
-}
+import { expect, test } from "@playwright/test";
+import { demoSignIns } from "@/demo-data/people";
+import { signIn } from "@/e2e/support/sign-in";
 
 test("a supervisor switches the queue to Smith's rule, after a refused value is named beside its field", async ({ page }) => {
   await signIn(page, demoSignIns.supervisor);
