@@ -25,9 +25,8 @@ let lastFullWalk: (ChainPoint & { at: Date }) | null = null;
 
 export async function checkAuditChainForScreen(db: DbOrTx, options: { now: Date; full?: boolean }): Promise<AuditChainStatus> {
   const { now } = options;
-  const resumable = lastFullWalk !== null && !options.full && now.getTime() - lastFullWalk.at.getTime() < FULL_WALK_EVERY_MS;
-  if (resumable && lastFullWalk) {
-    const from = lastFullWalk;
+  const from = !options.full && lastFullWalk && now.getTime() - lastFullWalk.at.getTime() < FULL_WALK_EVERY_MS ? lastFullWalk : null;
+  if (from) {
     const report = await verifyAuditChain(db, { resumeFrom: from });
     // A resumed walk that finds the chain broken says so; the next view walks in full.
     if (!report.intact) lastFullWalk = null;

@@ -2,7 +2,7 @@
 // model_version.saved audit event naming what changed. Admins only (and the system, for the demo).
 // A change of the negative sampling rate (β) or the prior hit rate re-derives the version's waiting
 // alerts in the same transaction: without a calibration map their probability, and so their expected
-// loss, due time and place in the queue, come from those two numbers (DESIGN.md §3).
+// loss, due time and place in the queue, come from those two numbers (DESIGN.md, "Probability of fraud for an alert").
 import "server-only";
 import type { Prisma } from "@/lib/generated/prisma/client";
 import type { DbOrTx } from "@/lib/db/client";
